@@ -1,0 +1,3 @@
+from logiccheck.cli.main import main
+
+main()

@@ -1,0 +1,115 @@
+"""The one list of checks: name, default severity, stage, docs and the code that runs it."""
+
+from __future__ import annotations
+
+import importlib
+from collections.abc import Callable, Iterable
+from dataclasses import dataclass
+from typing import TYPE_CHECKING, Literal
+
+from logiccheck.diagnostics import Diagnostic, Severity
+
+if TYPE_CHECKING:
+    from logiccheck.checks.context import LintContext
+
+Stage = Literal["spec", "routing", "data", "quality"]
+Runner = Callable[["LintContext"], Iterable[Diagnostic]]
+
+# Modules whose import registers checks; the registry is filled on first use.
+CHECK_MODULES = (
+    "logiccheck.checks.static",
+    "logiccheck.checks.routing",
+    "logiccheck.data.checks",
+    "logiccheck.quality.checks",
+)
+
+
+@dataclass(frozen=True)
+class CheckInfo:
+    """A check's identity and docs. `run` is None for data checks, which the vectorised
+    evaluator computes in one pass; their docs still live here."""
+
+    name: str
+    severity: Severity
+    stage: Stage
+    summary: str
+    what: str
+    why: str
+    bad: str
+    good: str
+    run: Runner | None = None
+
+
+_REGISTRY: dict[str, CheckInfo] = {}
+_loaded = False
+
+
+def register(
+    name: str,
+    *,
+    severity: Severity | str,
+    stage: Stage,
+    summary: str,
+    what: str,
+    why: str,
+    bad: str,
+    good: str,
+) -> Callable[[Runner], Runner]:
+    """Decorator: declare a check once, with its docs, beside its code."""
+
+    def wrap(fn: Runner) -> Runner:
+        _add(CheckInfo(name, Severity(severity), stage, summary, what, why, bad, good, fn))
+        return fn
+
+    return wrap
+
+
+def describe(
+    name: str,
+    *,
+    severity: Severity | str,
+    stage: Stage,
+    summary: str,
+    what: str,
+    why: str,
+    bad: str,
+    good: str,
+) -> CheckInfo:
+    """Declare a check whose findings another stage produces (data and quality checks)."""
+    info = CheckInfo(name, Severity(severity), stage, summary, what, why, bad, good, None)
+    _add(info)
+    return info
+
+
+def _add(info: CheckInfo) -> None:
+    if info.name in _REGISTRY and _REGISTRY[info.name].run is not info.run:
+        raise ValueError(f"check {info.name} is declared twice")
+    _REGISTRY[info.name] = info
+
+
+def _load() -> None:
+    global _loaded
+    if _loaded:
+        return
+    _loaded = True
+    for module in CHECK_MODULES:
+        try:
+            importlib.import_module(module)
+        except ModuleNotFoundError as err:
+            # A stage not built yet; any other missing module is a real error.
+            if err.name != module:
+                raise
+
+
+def all_checks() -> dict[str, CheckInfo]:
+    _load()
+    return dict(_REGISTRY)
+
+
+def get(name: str) -> CheckInfo | None:
+    return all_checks().get(name)
+
+
+def default_severity(name: str) -> Severity:
+    info = get(name)
+    return info.severity if info is not None else Severity.error

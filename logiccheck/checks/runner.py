@@ -1,0 +1,53 @@
+"""Run the spec checks in order; one failing check never hides the others."""
+
+from __future__ import annotations
+
+from collections.abc import Iterable
+
+from logiccheck.checks.context import LintContext
+from logiccheck.checks.registry import all_checks
+from logiccheck.diagnostics import Diagnostic, Severity, Span
+from logiccheck.load import Loaded
+
+STAGE_ORDER = ("spec", "routing")
+
+
+def run_checks(
+    loaded: Loaded,
+    *,
+    solver: bool = True,
+    disable: Iterable[str] = (),
+    severity: dict[str, Severity] | None = None,
+    options: dict[str, object] | None = None,
+) -> list[Diagnostic]:
+    """Syntax diagnostics, then every registered spec check (and routing checks)."""
+    disabled = set(disable)
+    overrides = severity or {}
+    ctx = LintContext(loaded.questionnaire, loaded.syntax, dict(options or {}))
+    out: list[Diagnostic] = list(loaded.syntax)
+    checks = all_checks()
+    stages = STAGE_ORDER if solver else ("spec",)
+    for stage in stages:
+        for info in checks.values():
+            if info.stage != stage or info.run is None or info.name in disabled:
+                continue
+            try:
+                out.extend(info.run(ctx))
+            except Exception as err:  # noqa: BLE001 - reported as a diagnostic instead
+                out.append(
+                    Diagnostic(
+                        check="internal-error",
+                        severity=Severity.error,
+                        span=Span(file=loaded.questionnaire.file, line=1, column=1),
+                        message=f"check `{info.name}` failed: {type(err).__name__}: {err}",
+                    )
+                )
+    result = []
+    for diag in out:
+        if diag.check in disabled:
+            continue
+        if diag.check in overrides:
+            diag = diag.model_copy(update={"severity": overrides[diag.check]})
+        result.append(diag)
+    result.sort(key=Diagnostic.sort_key)
+    return result

@@ -1,0 +1,1 @@
+"""The click command line: one module per command, registered in `main`."""

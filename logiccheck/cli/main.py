@@ -1,0 +1,28 @@
+"""Entry point: `logiccheck COMMAND ...`."""
+
+from __future__ import annotations
+
+import click
+
+from logiccheck import __version__
+from logiccheck.cli.explain import explain_command
+from logiccheck.cli.lint import lint_command
+
+
+@click.group(context_settings={"help_option_names": ["-h", "--help"]})
+@click.version_option(__version__, prog_name="logiccheck")
+def cli() -> None:
+    """State questionnaire routing once; lint it before fielding, validate exports after."""
+
+
+# One line per command module.
+cli.add_command(lint_command)
+cli.add_command(explain_command)
+
+
+def main() -> None:
+    cli(prog_name="logiccheck")
+
+
+if __name__ == "__main__":
+    main()

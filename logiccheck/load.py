@@ -1,0 +1,55 @@
+"""One call from spec text to a resolved questionnaire, with the diagnostics so far."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from logiccheck.diagnostics import Diagnostic
+from logiccheck.model.build import build_spec
+from logiccheck.model.questionnaire import Questionnaire
+from logiccheck.model.resolve import resolve
+from logiccheck.syntax import parse_text
+
+
+class SpecReadError(Exception):
+    """A spec file that cannot be read at all (missing, not UTF-8): exit status 2."""
+
+
+@dataclass
+class Loaded:
+    questionnaire: Questionnaire
+    syntax: list[Diagnostic] = field(default_factory=list)
+
+    @property
+    def ok(self) -> bool:
+        return not self.syntax
+
+
+def read_spec_text(path: str | Path) -> str:
+    path = Path(path)
+    try:
+        raw = path.read_bytes()
+    except FileNotFoundError:
+        raise SpecReadError(f"{path}: no such file; give the path of a .qlc spec") from None
+    except IsADirectoryError:
+        raise SpecReadError(f"{path}: is a folder; give the path of a .qlc spec") from None
+    except OSError as err:
+        raise SpecReadError(f"{path}: cannot read ({err.strerror})") from None
+    try:
+        return raw.decode("utf-8")
+    except UnicodeDecodeError as err:
+        raise SpecReadError(
+            f"{path}: not UTF-8 text (byte {err.start}); save the spec as UTF-8"
+        ) from None
+
+
+def load_text(text: str, file: str = "<spec>") -> Loaded:
+    parsed = parse_text(text, file)
+    spec, built = build_spec(parsed.tree, file)
+    questionnaire = resolve(spec, parsed.text)
+    return Loaded(questionnaire, sorted(parsed.diagnostics + built, key=Diagnostic.sort_key))
+
+
+def load_file(path: str | Path) -> Loaded:
+    return load_text(read_spec_text(path), str(path))

@@ -1,0 +1,15 @@
+"""`lint --format json`: the fields of DESIGN §5."""
+
+from __future__ import annotations
+
+import json
+
+from logiccheck.diagnostics import Diagnostic, count_by_severity
+
+
+def lint_json(diagnostics: list[Diagnostic]) -> str:
+    payload = {
+        "diagnostics": [d.to_json() for d in diagnostics],
+        "summary": count_by_severity(diagnostics),
+    }
+    return json.dumps(payload, indent=2, ensure_ascii=False)
