@@ -23,7 +23,7 @@ def _packed(values: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 
 def longest_run(packed: np.ndarray, count: np.ndarray) -> np.ndarray:
     """Longest run of identical consecutive answers per row (blanks skipped)."""
-    n, m = packed.shape
+    m = packed.shape[1]
     cur = np.where(count > 0, 1, 0)
     run = cur.copy()
     for j in range(1, m):

@@ -49,7 +49,7 @@ def measures(q: Questionnaire, state: RouteState, config: CompletenessConfig) ->
     keep = _substantive(q, state)
     due = state.due[:, keep]
     answered = answered_matrix(state, config)[:, keep]
-    names = [name for name, k in zip(state.items, keep) if k]
+    names = [name for name, k in zip(state.items, keep, strict=True) if k]
     unknown = sorted(set(config.weights) - set(names))
     if unknown:
         raise RuleError(f"[quality.completeness.weights]: no item is called {unknown[0]!r}")
