@@ -43,7 +43,7 @@ def duplicate_responses(ids: Sequence[object], answers: pd.DataFrame, min_answer
             continue
         for r in rows:
             others = ", ".join(str(ids[o]) for o in rows if o != r)
-            out.append(finding("duplicate-response", ids[r], r, f"same answers on all {answers.shape[1]} items as {others}"))
+            out.append(finding("duplicate-response", ids[r], r, f"same answers on all {answers.shape[1]} items as {others}", value=rows[0]))
     return sorted(out, key=lambda f: f.row)
 
 

@@ -1,0 +1,93 @@
+"""The cleaning policy (`[clean]` in TOML). `CleanPolicy.model_validate(dict)` is the
+entry point."""
+
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+from typing import Any, Literal
+
+from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator
+
+from logiccheck.quality.config import QualityConfig
+
+if sys.version_info >= (3, 11):
+    import tomllib
+else:  # pragma: no cover
+    import tomli as tomllib
+
+# Checks whose flagged respondents a policy may remove.
+RESPONDENT_CHECKS = (
+    "duplicate-id",
+    "duplicate-response",
+    "near-duplicate",
+    "straightline",
+    "pattern-response",
+    "speeder",
+    "not-in-frame",
+    "check-failed",
+)
+
+BIAS_WARNING = (
+    "Removing respondents can bias results; whether a case is removed is a decision for the "
+    "study's own protocol, not for this tool."
+)
+
+
+class PolicyError(ValueError):
+    """A policy file that cannot be read or does not validate."""
+
+
+class CleanPolicy(BaseModel):
+    model_config = ConfigDict(extra="forbid")
+
+    blank_out_of_path: bool = True  # answers the routing did not ask for (with cascade)
+    blank_invalid: bool = True  # undeclared codes, out-of-range numbers, non-response on strict items
+    # Per check: "flag" (default, nothing removed) or "drop" (remove the respondents it flags).
+    respondents: dict[str, Literal["flag", "drop"]] = Field(default_factory=dict)
+    # Dispositions to keep; None keeps every respondent whatever their disposition.
+    keep_dispositions: list[str] | None = None
+    # Neutralise cells a spreadsheet would run as a formula in CSV and .xlsx outputs.
+    sheet_safe: bool = True
+
+    @field_validator("respondents")
+    @classmethod
+    def _known(cls, v: dict[str, str]) -> dict[str, str]:
+        for name in v:
+            if name not in RESPONDENT_CHECKS:
+                raise ValueError(f"unknown check {name!r}; use one of {', '.join(RESPONDENT_CHECKS)}")
+        return v
+
+    @property
+    def drops(self) -> list[str]:
+        return [name for name, what in self.respondents.items() if what == "drop"]
+
+
+def _fmt(err: ValidationError, file: str) -> str:
+    first = err.errors()[0]
+    where = ".".join(str(p) for p in first["loc"])
+    return f"{file}: [{where}] {first['msg']}"
+
+
+def load_policy(path: str | Path | None) -> tuple[CleanPolicy, QualityConfig]:
+    """Read `[clean]` and `[quality]` from a TOML file (or `[tool.logiccheck]` in a
+    pyproject.toml). No file: the defaults."""
+    if path is None:
+        return CleanPolicy(), QualityConfig()
+    path = Path(path)
+    try:
+        doc: dict[str, Any] = tomllib.loads(path.read_text(encoding="utf-8"))
+    except FileNotFoundError:
+        raise PolicyError(f"{path}: no such policy file") from None
+    except (OSError, UnicodeDecodeError) as err:
+        raise PolicyError(f"{path}: cannot read ({err})") from None
+    except tomllib.TOMLDecodeError as err:
+        raise PolicyError(f"{path}: not valid TOML ({err})") from None
+    doc = doc.get("tool", {}).get("logiccheck", doc)
+    unknown = sorted(set(doc) - {"clean", "quality", "data", "lint", "ci", "report"})
+    if unknown:
+        raise PolicyError(f"{path}: unknown table [{unknown[0]}]; the policy lives in [clean] and [quality]")
+    try:
+        return CleanPolicy.model_validate(doc.get("clean", {})), QualityConfig.model_validate(doc.get("quality", {}))
+    except ValidationError as err:
+        raise PolicyError(_fmt(err, str(path))) from None

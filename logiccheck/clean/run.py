@@ -1,0 +1,114 @@
+"""The whole `clean` job as a function: read, check, apply the policy, write DIR."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+import pandas as pd
+
+from logiccheck import __version__
+from logiccheck.clean.apply import CleanOutcome, apply_policy
+from logiccheck.clean.io import ExportError, export_format, file_hash, read_export, write_json, write_table
+from logiccheck.clean.policy import BIAS_WARNING, CleanPolicy
+from logiccheck.model.questionnaire import Questionnaire
+from logiccheck.quality.config import SOURCES, QualityConfig
+from logiccheck.quality.rates import OutcomeCounts, dispositions_to_counts, outcome_rates
+from logiccheck.quality.repair import repair_hint
+from logiccheck.quality.run import QualityResult, run_quality
+
+MAX_HINTS = 200  # repair hints written to the summary (the solver runs once per failing respondent)
+
+
+@dataclass
+class CleanRun:
+    result: QualityResult
+    outcome: CleanOutcome
+    summary: dict[str, Any]
+    outputs: list[Path] = field(default_factory=list)
+
+
+def _repair_hints(q: Questionnaire, frame: pd.DataFrame, result: QualityResult, config: QualityConfig) -> list[dict[str, Any]]:
+    failing = sorted({int(r) for m in result.state.checks_failed.values() for r in m.nonzero()[0]})
+    hints = []
+    for r in failing[:MAX_HINTS]:
+        record: dict[str, Any] = {}
+        for name in q.symbols:
+            if name in frame.columns:
+                v = pd.to_numeric(pd.Series([frame.at[r, name]]), errors="coerce").iloc[0]
+                record[name] = None if pd.isna(v) else float(v)
+        hint = repair_hint(q, record, config.repair.weights, timeout_ms=config.repair.timeout_ms)
+        if hint is None:
+            continue
+        checks = [name for name, m in result.state.checks_failed.items() if m[r]]
+        hints.append({"respondent": result.state.ids[r], "row": r + 1, "fails": checks, "change": hint.items,
+                      "example_values": hint.values, "alternatives": hint.alternatives})
+    return hints
+
+
+def clean_export(
+    q: Questionnaire,
+    export: Path,
+    out: Path,
+    policy: CleanPolicy | None = None,
+    config: QualityConfig | None = None,
+    sample_frame: Path | None = None,
+    sample_outcomes: OutcomeCounts | None = None,
+) -> CleanRun:
+    policy = policy or CleanPolicy()
+    config = config or QualityConfig()
+    fmt = export_format(export)
+    frame = read_export(export)
+    sf = read_export(sample_frame) if sample_frame is not None else None
+    result = run_quality(q, frame, config, sf)
+    outcome = apply_policy(q, frame, result, policy)
+
+    stem = export.stem
+    main_out = out / f"{stem}.cleaned{export.suffix.lower()}"
+    targets = [main_out, out / f"{stem}.cleaned.csv", out / "audit.csv", out / "summary.json", out / "findings.csv"]
+    protected = {export.resolve(), *( [sample_frame.resolve()] if sample_frame else [] )}
+    for t in targets:
+        if t.resolve() in protected:
+            raise ExportError(f"{t}: would overwrite an input file; choose another --out folder")
+
+    disp_counts = result.disposition_counts()
+    stops = [e.name for e in q.entries if e.kind == "stop"]
+    if sample_outcomes is not None:
+        counts, basis = sample_outcomes, "sample file"
+    else:
+        counts = dispositions_to_counts(disp_counts, stops)
+        basis = "export dispositions only (no non-contacts or unknown-eligibility cases known: an upper bound)"
+    summary: dict[str, Any] = {
+        "tool": "logiccheck",
+        "version": __version__,
+        "spec": q.file,
+        "input": {"file": str(export), "sha256": file_hash(export), "respondents": len(frame), "format": fmt},
+        "output": {"respondents": len(outcome.cleaned), "removed": sum(outcome.removed.values()),
+                   "cells_blanked": sum(outcome.blanked.values())},
+        "findings": result.counts(),
+        "dispositions": disp_counts,
+        "blanked": outcome.blanked,
+        "removed": outcome.removed,
+        "policy": policy.model_dump(mode="json"),
+        "thresholds": config.thresholds(),
+        "threshold_sources": SOURCES,
+        "rates": {"basis": basis, "counts": counts.as_dict(), **outcome_rates(counts)},
+        "repair_hints": _repair_hints(q, frame, result, config),
+        "notes": [*result.notes, BIAS_WARNING],
+    }
+    findings = pd.DataFrame(
+        [{"row": f.row + 1, "respondent": f.respondent, "check": f.check, "severity": f.severity.value,
+          "item": f.item or "", "value": "" if f.value is None else str(f.value), "message": f.message}
+         for f in result.findings],
+        columns=["row", "respondent", "check", "severity", "item", "value", "message"],
+    ).astype(str)
+
+    write_table(outcome.cleaned, main_out, fmt, policy.sheet_safe)
+    if fmt != "csv":
+        write_table(outcome.cleaned, targets[1], "csv", policy.sheet_safe)
+    write_table(outcome.audit.astype(str), targets[2], "csv", policy.sheet_safe)
+    write_table(findings, targets[4], "csv", policy.sheet_safe)
+    write_json(summary, targets[3])
+    written = [main_out, *([targets[1]] if fmt != "csv" else []), targets[2], targets[4], targets[3]]
+    return CleanRun(result, outcome, summary, written)

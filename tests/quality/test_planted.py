@@ -1,0 +1,34 @@
+"""The bar: every planted case is caught by exactly the intended check; clean
+respondents are left alone."""
+
+from __future__ import annotations
+
+from logiccheck.clean.io import read_export
+from logiccheck.load import load_text
+from logiccheck.quality.run import run_quality
+from tests.quality.planted import SPEC, build
+
+
+def test_every_planted_case_and_only_it(tmp_path) -> None:  # type: ignore[no-untyped-def]
+    export, frame, expected = build()
+    export.to_csv(tmp_path / "export.csv", index=False)
+    frame.to_csv(tmp_path / "frame.csv", index=False)
+    q = load_text(SPEC, "libvisit.qlc").questionnaire
+    data = read_export(tmp_path / "export.csv")
+    result = run_quality(q, data, sample_frame=read_export(tmp_path / "frame.csv"))
+    got: dict[str, set[str]] = {rid: set() for rid in expected}
+    for f in result.findings:
+        got[f.respondent].add(f.check)
+    assert got == expected
+    near = [f for f in result.findings if f.check == "near-duplicate"]
+    assert {f.value for f in near} == {round(12 / 14, 4)}
+    assert "p-near2" in next(f.message for f in near if f.respondent == "p-near1")
+
+    disp = dict(zip(result.state.ids, result.dispositions.tolist(), strict=True))
+    assert disp["p-break"] == "break-off"
+    # With the default thresholds (AAPOR Standard Definitions example thresholds, from
+    # memory) everyone else answered every applicable item: complete.
+    assert {d for rid, d in disp.items() if rid != "p-break"} == {"complete"}
+    # The break-off answered only the first gate of its route.
+    row = result.state.ids.index("p-break")
+    assert result.measures.loc[row, "gates_answered"] == 1 and result.measures.loc[row, "gates_due"] == 2
