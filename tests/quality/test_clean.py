@@ -1,0 +1,164 @@
+"""`clean`: the policy, the audit trail and its guarantees."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import pandas as pd
+import pytest
+from click.testing import CliRunner
+
+from logiccheck.clean import io as clean_io
+from logiccheck.clean.apply import reverse_audit
+from logiccheck.clean.io import file_hash, read_export, read_sheet_csv
+from logiccheck.clean.policy import CleanPolicy, PolicyError, load_policy
+from logiccheck.clean.run import clean_export
+from logiccheck.clean.sheet import escape, unescape
+from logiccheck.cli.main import cli
+from logiccheck.load import load_text
+from tests.quality.planted import COLUMNS, SPEC, build, card_row
+
+
+def setup(tmp: Path) -> tuple[Path, Path, Path]:
+    export, frame, _ = build()
+    extra = [
+        # Out of path: a non-member who also answered the members' visits question.
+        {**dict.fromkeys(COLUMNS, ""), "id": "x-oop", "email": "x-oop@example.org", "age": "50", "member": "2",
+         "why_no": "1", "visits": "5", "overall": "6", "duration": "590"},
+        # An invalid code in the grid, a formula-like comment, and a failed edit rule.
+        card_row("x-bad", [2, 3, 7, 1, 4, 5, 2, 3], items_n=0, comments="=HYPERLINK(\"http://x\",\"y\")"),
+        card_row("x-neg", [1, 2, 3, 4, 5, 1, 2, 4], comments="-not a number, but starts like one"),
+    ]
+    export = pd.concat([export, pd.DataFrame(extra, columns=COLUMNS).astype(str)], ignore_index=True)
+    frame = pd.concat([frame, pd.DataFrame({"id": ["x-oop", "x-bad", "x-neg"], "email": [""] * 3})])
+    spec, data, fr = tmp / "lib.qlc", tmp / "export.csv", tmp / "frame.csv"
+    spec.write_text(SPEC)
+    export.to_csv(data, index=False)
+    frame.to_csv(fr, index=False)
+    return spec, data, fr
+
+
+def test_defaults_blank_cells_and_only_flag(tmp_path: Path) -> None:
+    spec, data, fr = setup(tmp_path)
+    before = (file_hash(data), data.stat().st_mtime_ns)
+    q = load_text(SPEC, str(spec)).questionnaire
+    run = clean_export(q, data, tmp_path / "out", sample_frame=fr)
+    assert (file_hash(data), data.stat().st_mtime_ns) == before  # the input is never modified
+    audit = run.outcome.audit
+    changes = {(r.respondent, r.column, r.check) for r in audit.itertuples()}
+    assert changes == {("x-oop", "visits", "out-of-path"), ("x-bad", "s_hours", "invalid-value")}
+    assert len(run.outcome.cleaned) == len(read_export(data))  # flag only: nobody removed
+    s = run.summary
+    assert s["input"]["sha256"] == before[0] and s["version"]
+    assert s["findings"]["speeder"] == 1 and s["dispositions"]["break-off"] == 1
+    assert s["thresholds"]["duplicates"]["near_threshold"] == 0.85
+    assert s["threshold_sources"]["speed.fraction_of_median"] == "common practice, no source"
+    assert s["policy"]["respondents"] == {}
+    assert any("bias" in n for n in s["notes"])
+    # The failed edit rule gets a repair hint: change the number of items (or `borrow`).
+    hint = next(h for h in s["repair_hints"] if h["respondent"] == "x-bad")
+    assert sorted([hint["change"], *hint["alternatives"]]) == [["borrow"], ["items_n"]]
+    # Clean respondents are untouched, cell for cell.
+    original = read_export(data)
+    cleaned = read_sheet_csv(tmp_path / "out" / "export.cleaned.csv")
+    untouched = ~original["id"].isin(["x-oop", "x-bad"])
+    pd.testing.assert_frame_equal(cleaned[untouched].reset_index(drop=True), original[untouched].reset_index(drop=True))
+
+
+def test_reverse_audit_reproduces_the_original(tmp_path: Path) -> None:
+    spec, data, fr = setup(tmp_path)
+    q = load_text(SPEC, str(spec)).questionnaire
+    policy = CleanPolicy(
+        respondents={"speeder": "drop", "duplicate-id": "drop", "near-duplicate": "drop", "check-failed": "drop"},
+        keep_dispositions=["complete", "partial"],
+    )
+    run = clean_export(q, data, tmp_path / "out", policy=policy, sample_frame=fr)
+    assert run.outcome.removed == {"speeder": 1, "duplicate-id": 1, "near-duplicate": 1, "check-failed": 1, "disposition": 1}
+    cleaned = read_sheet_csv(tmp_path / "out" / "export.cleaned.csv")
+    audit = read_sheet_csv(tmp_path / "out" / "audit.csv")
+    assert len(cleaned) == len(read_export(data)) - 5
+    restored = reverse_audit(cleaned, audit)
+    pd.testing.assert_frame_equal(restored, read_export(data))
+    # The first of each duplicate pair stays.
+    assert (cleaned["id"] == "p-dupid").sum() == 1 and "p-near1" in set(cleaned["id"])
+
+
+def test_formula_cells_are_neutralised(tmp_path: Path) -> None:
+    spec, data, fr = setup(tmp_path)
+    q = load_text(SPEC, str(spec)).questionnaire
+    clean_export(q, data, tmp_path / "out", sample_frame=fr)
+    raw = (tmp_path / "out" / "export.cleaned.csv").read_text()
+    assert "'=HYPERLINK" in raw and ",=HYPERLINK" not in raw and '"=HYPERLINK' not in raw
+    assert "'-not a number" in raw
+    # Negative numbers are data, not formulas.
+    assert escape("-5") == "-5" and escape("-2.5e3") == "-2.5e3"
+    for cell in ["=1+1", "+x", "@sum", "'=x", "''=x", "'plain", "plain", "", "-", "\tx"]:
+        assert unescape(escape(cell)) == cell
+        assert not escape(cell).startswith(("=", "+", "@", "\t")) or cell == ""
+
+
+def test_outputs_are_written_atomically(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    spec, data, fr = setup(tmp_path)
+    q = load_text(SPEC, str(spec)).questionnaire
+    out = tmp_path / "out"
+    clean_export(q, data, out, sample_frame=fr)
+    old = (out / "summary.json").read_bytes()
+
+    def broken(obj: object, path: Path) -> None:
+        def half(p: Path) -> None:
+            p.write_text('{"half": ')
+            raise KeyboardInterrupt
+
+        clean_io.atomic_write(path, half)
+
+    monkeypatch.setattr("logiccheck.clean.run.write_json", broken)
+    with pytest.raises(KeyboardInterrupt):
+        clean_export(q, data, out, sample_frame=fr)
+    assert (out / "summary.json").read_bytes() == old  # the previous file, whole
+    assert not list(out.glob(".*.part"))  # no half-written file left behind
+
+
+def test_parquet_in_parquet_and_csv_out(tmp_path: Path) -> None:
+    spec, data, fr = setup(tmp_path)
+    pq = tmp_path / "export.parquet"
+    pd.read_csv(data, dtype=str, keep_default_na=False).to_parquet(pq, index=False)
+    q = load_text(SPEC, str(spec)).questionnaire
+    run = clean_export(q, pq, tmp_path / "out", sample_frame=fr)
+    assert (tmp_path / "out" / "export.cleaned.parquet").is_file()
+    assert (tmp_path / "out" / "export.cleaned.csv").is_file()
+    assert run.summary["input"]["format"] == "parquet"
+
+
+def test_command_line(tmp_path: Path) -> None:
+    spec, data, fr = setup(tmp_path)
+    policy = tmp_path / "policy.toml"
+    policy.write_text('[clean]\nrespondents = { speeder = "drop" }\n\n[quality.speed]\nfraction_of_median = 0.3\n')
+    runner = CliRunner()
+    res = runner.invoke(cli, ["clean", str(spec), "--data", str(data), "--out", str(tmp_path / "o"),
+                              "--policy", str(policy), "--frame", str(fr), "--color", "never"])
+    assert res.exit_code == 0, res.output
+    assert "removed  speeder" in res.output and "bias" in res.output
+    summary = json.loads((tmp_path / "o" / "summary.json").read_text())
+    assert summary["thresholds"]["speed"]["fraction_of_median"] == 0.3 and summary["removed"] == {"speeder": 1}
+    # Input errors: one line, exit 2.
+    res = runner.invoke(cli, ["clean", str(spec), "--data", str(tmp_path / "nope.csv"), "--out", str(tmp_path / "o")])
+    assert res.exit_code == 2 and "no such export file" in res.output
+    policy.write_text('[clean]\nrespondents = { speedy = "drop" }\n')
+    res = runner.invoke(cli, ["clean", str(spec), "--data", str(data), "--out", str(tmp_path / "o"), "--policy", str(policy)])
+    assert res.exit_code == 2 and "unknown check 'speedy'" in res.output and "Traceback" not in res.output
+    res = runner.invoke(cli, ["clean", str(spec), "--data", str(data), "--out", str(tmp_path)])
+    assert res.exit_code == 0  # writing beside the input is fine: file names never collide
+    assert file_hash(data) == summary["input"]["sha256"]
+
+
+def test_policy_file_errors(tmp_path: Path) -> None:
+    p = tmp_path / "p.toml"
+    p.write_text("[clean]\nblank_invalid = 3\n")
+    with pytest.raises(PolicyError, match=r"\[blank_invalid\]"):
+        load_policy(p)
+    p.write_text("[cleaning]\n")
+    with pytest.raises(PolicyError, match="unknown table"):
+        load_policy(p)
+    p.write_text("[tool.logiccheck.quality.duplicates]\nnear_threshold = 0.9\n")
+    assert load_policy(p)[1].duplicates.near_threshold == 0.9
