@@ -32,6 +32,7 @@ class Resolver:
     def __init__(self, spec: n.Spec, text: str) -> None:
         self.q = Questionnaire(spec=spec, text=text)
         self.block_when: dict[int, Any] = {}  # id(section or grid) -> resolved condition
+        self.peeking: set[str] = set()  # derived values whose kind is being inferred
 
     # ------------------------------------------------------------ flatten
     def run(self) -> Questionnaire:
@@ -211,8 +212,15 @@ class Resolver:
             return "unknown"
         if entry.kind == "let":
             if name not in q.let_kinds:
-                # Not resolved yet (a forward or circular reference): infer without judging.
-                return self.kind_of_expr(entry.stmt.expr, entry, "peek", judge=False)
+                # Not resolved yet (a forward or circular reference): infer without judging,
+                # and stop at a name already being inferred (a loop).
+                if name in self.peeking:
+                    return "unknown"
+                self.peeking.add(name)
+                try:
+                    return self.kind_of_expr(entry.stmt.expr, entry, "peek", judge=False)
+                finally:
+                    self.peeking.discard(name)
             return q.let_kinds[name]
         return q.value_kind(name)
 
