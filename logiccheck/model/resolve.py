@@ -15,14 +15,16 @@ BOOLEAN_NODES = (n.Compare, n.InList, n.InRange, n.Has, n.Not, n.And, n.Or)
 
 def pipes_in(text: str, span: Span) -> list[tuple[str, Span]]:
     """Names piped into a quoted text, with their positions (text on one line)."""
-    out = []
+    out: list[tuple[str, Span]] = []
+    if "{" not in text:
+        return out
     for match in PIPE.finditer(text):
         # +1 for the opening quote; the text is on the span's line.
         col = span.column + 1 + match.start(1)
         out.append(
             (
                 match.group(1),
-                Span(file=span.file, line=span.line, column=col, end_line=span.line, end_column=col + len(match.group(1))),
+                Span.model_construct(file=span.file, line=span.line, column=col, end_line=span.line, end_column=col + len(match.group(1))),
             )
         )
     return out
