@@ -16,10 +16,10 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
-from benchmarks.generate import Shape, generate  # noqa: E402
-from logiccheck.checks.runner import run_checks  # noqa: E402
-from logiccheck.load import load_text  # noqa: E402
-from logiccheck.syntax.grammar import spec_parser  # noqa: E402
+from benchmarks.generate import Shape, generate
+from logiccheck.checks.runner import run_checks
+from logiccheck.load import load_text
+from logiccheck.syntax.grammar import spec_parser
 
 BAR_SECONDS = 2.0  # the bar for 5,000 items on the 2-core CI machine
 

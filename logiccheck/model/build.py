@@ -44,7 +44,7 @@ class Builder:
         meta = tree.meta
         if getattr(meta, "empty", True):
             return n.construct(Span, file=self.file, line=1, column=1)
-        return n.construct(Span, 
+        return n.construct(Span,
             file=self.file,
             line=meta.line,
             column=meta.column,
@@ -53,7 +53,7 @@ class Builder:
         )
 
     def span_tok(self, tok: Token) -> Span:
-        return n.construct(Span, 
+        return n.construct(Span,
             file=self.file,
             line=tok.line or 1,
             column=tok.column or 1,
@@ -97,7 +97,7 @@ class Builder:
 
     def code_line(self, tree: Tree) -> n.CodeOption:
         label, _eq, value, text = tree.children
-        return n.construct(n.CodeOption, 
+        return n.construct(n.CodeOption,
             span=self.span_tok(label),
             label=str(label),
             value=self.signed_int(value),
@@ -109,7 +109,7 @@ class Builder:
 
     def codes_def(self, tree: Tree) -> n.CodeList:
         name = tree.children[0]
-        return n.construct(n.CodeList, 
+        return n.construct(n.CodeList,
             span=self.span_tok(name), name=str(name), options=self.code_lines(tree.children[1:])
         )
 
@@ -134,7 +134,7 @@ class Builder:
                 tok = ref.children[0]
                 return n.construct(n.TypeSpec, span=span, kind=kind, codes_name=str(tok), codes_span=self.span_tok(tok))
             options = [
-                n.construct(n.CodeOption, 
+                n.construct(n.CodeOption,
                     span=self.span_tok(c.children[0]),
                     label=str(c.children[0]),
                     value=self.signed_int(c.children[2]),
@@ -182,7 +182,7 @@ class Builder:
         return found
 
     def flags(self, opts: dict[str, Any]) -> n.Flags:
-        return n.construct(n.Flags, 
+        return n.construct(n.Flags,
             gate=bool(opts.get("gate")),
             key=bool(opts.get("key")),
             required=bool(opts.get("required")),
@@ -204,7 +204,7 @@ class Builder:
         if kind == "item":
             name, tspec, text = ch[0], ch[1], ch[2]
             opts = self.options("item", ch[3:])
-            return n.construct(n.Item, 
+            return n.construct(n.Item,
                 span=span,
                 name=str(name),
                 name_span=self.span_tok(name),
@@ -224,7 +224,7 @@ class Builder:
         if kind == "stop":
             name, text = ch[0], ch[1]
             opts = self.options("stop", ch[2:])
-            return n.construct(n.Stop, 
+            return n.construct(n.Stop,
                 span=span,
                 name=str(name),
                 name_span=self.span_tok(name),
@@ -237,7 +237,7 @@ class Builder:
             opts = self.options("check", ch[2:])
             if "require" not in opts:
                 self.error(self.span_tok(name), "a `check` needs `require COND`: the rule that must hold")
-            return n.construct(n.Check, 
+            return n.construct(n.Check,
                 span=span,
                 name=str(name),
                 name_span=self.span_tok(name),
@@ -251,7 +251,7 @@ class Builder:
             rest = [c for c in ch[2:] if c is not None]
             opts = self.options("section", [c for c in rest if c.data.startswith(("opt_", "clause_line"))])
             body = [self.statement(c, None) for c in rest if not c.data.startswith(("opt_", "clause_line"))]
-            return n.construct(n.Section, 
+            return n.construct(n.Section,
                 span=span,
                 name=str(name),
                 name_span=self.span_tok(name),
@@ -274,7 +274,7 @@ class Builder:
                 merged = {k: v for k, v in opts.items() if k not in ("when", "shuffled")}
                 merged.update({k: v for k, v in ropts.items() if k != "when"})
                 rows.append(
-                    n.construct(n.Item, 
+                    n.construct(n.Item,
                         span=self.span_tree(row),
                         name=str(rname),
                         name_span=self.span_tok(rname),
@@ -288,7 +288,7 @@ class Builder:
                 )
             if not rows:
                 self.error(self.span_tok(name), f"grid `{name}` has no rows; indent one `row_name \"text\"` line per row under it")
-            return n.construct(n.Grid, 
+            return n.construct(n.Grid,
                 span=span,
                 name=str(name),
                 name_span=self.span_tok(name),
@@ -329,7 +329,7 @@ class Builder:
             return n.construct(n.InList, span=span, subject=self.expr(ch[0]), values=[self.expr(c) for c in ch[1:]])
         if kind == "in_range":
             rng = ch[1]
-            return n.construct(n.InRange, 
+            return n.construct(n.InRange,
                 span=span,
                 subject=self.expr(ch[0]),
                 lo=self.signed_num(rng.children[0]),
