@@ -5,8 +5,10 @@ from __future__ import annotations
 import click
 
 from logiccheck import __version__
+from logiccheck.cli.check import check_command
 from logiccheck.cli.explain import explain_command
 from logiccheck.cli.lint import lint_command
+from logiccheck.cli.validate import validate_command
 
 
 @click.group(context_settings={"help_option_names": ["-h", "--help"]})
@@ -18,6 +20,8 @@ def cli() -> None:
 # One line per command module.
 cli.add_command(lint_command)
 cli.add_command(explain_command)
+cli.add_command(validate_command)
+cli.add_command(check_command)
 
 
 def main() -> None:
