@@ -8,6 +8,7 @@ from logiccheck import __version__
 from logiccheck.cli.check import check_command
 from logiccheck.cli.explain import explain_command
 from logiccheck.cli.lint import lint_command
+from logiccheck.cli.simulate import simulate_command
 from logiccheck.cli.validate import validate_command
 
 
@@ -22,6 +23,7 @@ cli.add_command(lint_command)
 cli.add_command(explain_command)
 cli.add_command(validate_command)
 cli.add_command(check_command)
+cli.add_command(simulate_command)
 
 
 def main() -> None:

@@ -68,6 +68,7 @@ class Env:
 
 
 Compiled = Callable[[Env], Any]  # Env -> TV | NumV
+Supplier = Callable[[Entry, np.ndarray], "Cells | None"]
 
 
 def kleene_and(parts: list[TV]) -> TV:
@@ -346,7 +347,9 @@ class Evaluator:
             self.guards[e.index] = out
         return self.guards[e.index]
 
-    def run(self, cells: dict[str, Cells], rows: int) -> ChunkState:
+    def run(self, cells: dict[str, Cells], rows: int, supply: Supplier | None = None) -> ChunkState:
+        """Evaluate one chunk. `supply(entry, due)`, when given, makes an item's cells
+        from its due mask (the simulator uses it); otherwise `cells` holds them."""
         env = Env(rows)
         stop_at = np.full(rows, -1, dtype=np.int32)
         skip_until = np.full(rows, -1, dtype=np.int32)
@@ -361,6 +364,8 @@ class Evaluator:
                 state.lets[e.name] = out
                 continue
             if e.kind == "sample":
+                if supply is not None:
+                    cells[e.name] = supply(e, np.ones(rows, dtype=bool))
                 self._set_value(env, e, cells.get(e.name), np.ones(rows, dtype=bool))
                 continue
             alive = (stop_at < 0) & (skip_until <= e.index)
@@ -381,6 +386,8 @@ class Evaluator:
                 fails = cond & req(env).f if req is not None else np.zeros(rows, dtype=bool)
                 state.check_fails[e.name] = fails
             elif e.kind == "item":
+                if supply is not None:
+                    cells[e.name] = supply(e, cond)
                 c = cells.get(e.name)
                 env.due[e.name] = cond
                 env.asked[e.name] = cond

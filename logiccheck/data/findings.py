@@ -51,12 +51,17 @@ class FindingBlock:
     ids: np.ndarray | None = None  # respondent ids (object array of str), aligned with rows
     values: list[str] | None = None  # cell texts, aligned with rows
 
-    def records(self) -> list[Finding]:
+    def head(self, k: int) -> list[Finding]:
+        """The first `k` records only."""
+        return self.records(limit=k)
+
+    def records(self, limit: int | None = None) -> list[Finding]:
         if self.rows.size == 0:
             return [Finding(check=self.check, severity=self.severity, item=self.item, message=self.message)]
         out = []
         templated = "{value}" in self.message
-        for i, row in enumerate(self.rows.tolist()):
+        rows = self.rows if limit is None else self.rows[:limit]
+        for i, row in enumerate(rows.tolist()):
             value = self.values[i] if self.values is not None else None
             message = self.message.replace("{value}", value or "") if templated else self.message
             out.append(

@@ -58,16 +58,17 @@ def render_validation(console: Console, result: ValidationResult, *, show: int =
             f"[{STYLE[sev]}]{sev}[/{STYLE[sev]}] [magenta]{check}[/magenta]: {count} finding{'s' if count != 1 else ''}",
             highlight=False,
         )
-        shown = 0
+        # The first `show` findings by row, taken from each block's head only.
+        heads = []
         for block in result.blocks:
-            if block.check != check or block.severity.value != sev:
-                continue
-            for f in block.records()[: show - shown]:
-                where = f"row {f.row}, id {f.respondent}" if f.row is not None else "file"
-                console.print(f"  [dim]{escape(where)}:[/dim] {escape(f.message)}", highlight=False, soft_wrap=True)
-                shown += 1
-            if shown >= show:
-                break
+            if block.check == check and block.severity.value == sev:
+                heads.extend(block.head(show))
+        heads.sort(key=lambda f: (f.row is not None, f.row or 0))
+        shown = 0
+        for f in heads[:show]:
+            where = f"row {f.row}, id {f.respondent}" if f.row is not None else "file"
+            console.print(f"  [dim]{escape(where)}:[/dim] {escape(f.message)}", highlight=False, soft_wrap=True)
+            shown += 1
         if count > shown:
             console.print(f"  [dim]… and {count - shown} more (--format json or csv lists all)[/dim]", highlight=False)
     console.print()
