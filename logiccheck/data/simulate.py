@@ -231,7 +231,7 @@ def write_csv(table: pa.Table, path: str | Path) -> None:
 
 
 def write_faults(faults: list[tuple[int, str, str, str]], path: str | Path) -> None:
-    rows = list(zip(*faults)) if faults else [[], [], [], []]
+    rows = list(zip(*faults, strict=True)) if faults else [[], [], [], []]
     table = pa.table(
         {
             "row": pa.array(rows[0], pa.int64()),
