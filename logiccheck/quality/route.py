@@ -80,9 +80,9 @@ def item_columns(q: Questionnaire, entry: Entry) -> list[str]:
 
 def _blank(series: pd.Series) -> np.ndarray:
     s = series
-    if s.dtype == object:
-        return s.isna().to_numpy() | s.astype(str).str.strip().eq("").to_numpy()
-    return s.isna().to_numpy()
+    if pd.api.types.is_numeric_dtype(s) or pd.api.types.is_bool_dtype(s):
+        return s.isna().to_numpy()
+    return s.isna().to_numpy() | s.astype(object).map(lambda v: str(v).strip() == "").to_numpy(dtype=bool)
 
 
 class _Evaluator:

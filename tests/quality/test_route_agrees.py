@@ -1,0 +1,43 @@
+"""The quality stage's route state against the data stage's evaluator (an independent
+implementation of the same semantics, DESIGN §3): due, answered and valid agree cell for
+cell, and so do the default dispositions."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from logiccheck.clean.io import read_export
+from logiccheck.data import validate
+from logiccheck.load import load_file, load_text
+from logiccheck.quality.completeness import dispositions
+from logiccheck.quality.config import CompletenessConfig
+from logiccheck.quality.route import route_state
+from tests.conftest import SPECS
+from tests.quality.planted import SPEC, build
+
+
+def cases(tmp: Path) -> list[tuple[object, Path]]:
+    export, _, _ = build()
+    path = tmp / "planted.csv"
+    export.to_csv(path, index=False)
+    return [
+        (load_text(SPEC, "libvisit.qlc").questionnaire, path),
+        (load_file(SPECS / "bikeshare.qlc").questionnaire, SPECS / "bikeshare_export.csv"),
+    ]
+
+
+@pytest.mark.parametrize("case", [0, 1])
+def test_route_state_agrees_with_validation(tmp_path: Path, case: int) -> None:
+    q, path = cases(tmp_path)[case]
+    theirs = validate(q, path, keep_cells=True)
+    ours = route_state(q, read_export(path))
+    assert ours.items == theirs.items and ours.ids == list(theirs.ids)
+    for name in ("due", "has_value", "valid"):
+        np.testing.assert_array_equal(getattr(ours, name), getattr(theirs, name), err_msg=name)
+    np.testing.assert_array_equal(dispositions(q, ours, CompletenessConfig()).to_numpy(), theirs.disposition)
+    failed = {(f.respondent, f.item) for f in theirs.findings if f.check == "check-failed"}
+    mine = {(ours.ids[r], name) for name, m in ours.checks_failed.items() for r in np.flatnonzero(m)}
+    assert {r for r, _ in mine} == {r for r, _ in failed}
