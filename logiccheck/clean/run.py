@@ -15,7 +15,7 @@ from logiccheck.clean.policy import BIAS_WARNING, CleanPolicy
 from logiccheck.model.questionnaire import Questionnaire
 from logiccheck.quality.config import SOURCES, QualityConfig
 from logiccheck.quality.rates import OutcomeCounts, dispositions_to_counts, outcome_rates
-from logiccheck.quality.repair import repair_hint
+from logiccheck.quality.repair import Repairer
 from logiccheck.quality.run import QualityResult, run_quality
 
 MAX_HINTS = 200  # repair hints written to the summary (the solver runs once per failing respondent)
@@ -31,19 +31,17 @@ class CleanRun:
 
 def _repair_hints(q: Questionnaire, frame: pd.DataFrame, result: QualityResult, config: QualityConfig) -> list[dict[str, Any]]:
     failing = sorted({int(r) for m in result.state.checks_failed.values() for r in m.nonzero()[0]})
-    hints = []
+    hints: list[dict[str, Any]] = []
+    if not failing:
+        return hints
+    repairer = Repairer(q, config.repair.weights, timeout_ms=config.repair.timeout_ms)
     for r in failing[:MAX_HINTS]:
-        record: dict[str, Any] = {}
-        for name in q.symbols:
-            if name in frame.columns:
-                v = pd.to_numeric(pd.Series([frame.at[r, name]]), errors="coerce").iloc[0]
-                record[name] = None if pd.isna(v) else float(v)
-        hint = repair_hint(q, record, config.repair.weights, timeout_ms=config.repair.timeout_ms)
+        hint = repairer.hint(frame.iloc[r].to_dict())
         if hint is None:
             continue
         checks = [name for name, m in result.state.checks_failed.items() if m[r]]
         hints.append({"respondent": result.state.ids[r], "row": r + 1, "fails": checks, "change": hint.items,
-                      "example_values": hint.values, "alternatives": hint.alternatives})
+                      "example_values": {k: (None if v is None or v != v else v) for k, v in hint.values.items()}, "alternatives": hint.alternatives})
     return hints
 
 

@@ -1,123 +1,52 @@
 """Edit-rule repair hints: the fewest (weighted) items whose values could change so that
-every `check` rule holds — the error-localisation principle of Fellegi & Holt (1976) —
-solved exactly with z3's optimiser.
+every `check` rule and the routing hold — the error-localisation principle of Fellegi &
+Holt (1976) — solved exactly with z3's optimiser over the questionnaire's logic encoding.
 
-Each item a rule reads is a solver variable within its declared domain; an unchanged
-item keeps its recorded value; the objective is the total weight of changed items. A
-rule applies as it does in the data (its section/grid conditions and `when`), so a
-change may also make a rule stop applying.
+Every item keeps its recorded state unless it is in the change set. A changed item that
+had a value gets any value of its domain where the routing asks it and becomes blank
+where the routing no longer does (blanking an asked answer is not a repair: a blank only
+makes a rule unknown); a changed blank is filled. Every statement the encoding reads
+applies: domains, `required`, answered-only-if-asked, and no `check` fails.
 """
 
 from __future__ import annotations
 
+import math
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 from typing import Any
 
 import z3
 
-from logiccheck.model import nodes as n
-from logiccheck.model.questionnaire import Entry, Questionnaire
-
-
-class Untranslatable(Exception):
-    """An expression this encoding does not cover (sets, text)."""
+from logiccheck.logic.encoding import Encoding
+from logiccheck.model.questionnaire import Questionnaire
 
 
 @dataclass
 class RepairHint:
     items: list[str]  # a minimal set of items to change
     cost: float
-    values: dict[str, float]  # one assignment of new values that satisfies every rule
+    values: dict[str, float | None]  # one consistent assignment for them (None: blank)
     alternatives: list[list[str]] = field(default_factory=list)  # every other set of the same cost
-    skipped_rules: list[str] = field(default_factory=list)  # rules the encoding could not read
+    skipped_rules: list[str] = field(default_factory=list)  # checks the encoding could not read
 
 
-def _is_blank(v: Any) -> bool:
-    return v is None or (isinstance(v, float) and v != v)
-
-
-class _Encoder:
-    def __init__(self, q: Questionnaire, record: Mapping[str, Any]) -> None:
-        self.q = q
-        self.record = record
-        self.vars: dict[str, z3.ArithRef] = {}
-        self.domain: list[z3.BoolRef] = []
-        self.nr = {o.value for o in q.nonresponse}
-
-    def var(self, name: str) -> z3.ArithRef:
-        if name in self.vars:
-            return self.vars[name]
-        entry = self.q.symbols.get(name)
-        if entry is None or entry.kind not in ("item", "sample"):
-            raise Untranslatable(name)
-        t = entry.stmt.type
-        value = self.record.get(name)
-        if t.kind in ("multi", "text", "note") or _is_blank(value):
-            # Blank: a rule reading it is unknown, not failed; not repaired through.
-            raise Untranslatable(name)
-        if float(value) in self.nr:
-            raise Untranslatable(name)
-        # Reals throughout (mixed int/real terms confuse the optimiser); integer items
-        # are constrained to integers.
-        v = z3.Real(name)
-        if t.kind != "decimal":
-            self.domain.append(z3.IsInt(v))
-        if t.kind == "single" or entry.kind == "sample":
-            codes = self.q.item_codes(entry.stmt)
-            self.domain.append(z3.Or([v == o.value for o in (codes.options if codes else [])]))
-        else:
-            if t.lo is not None:
-                self.domain.append(v >= _const(t.lo))
-            if t.hi is not None:
-                self.domain.append(v <= _const(t.hi))
-        self.vars[name] = v
-        return v
-
-    def num(self, expr: Any) -> z3.ArithRef:
-        if isinstance(expr, n.Num):
-            return _const(expr.value)
-        if isinstance(expr, n.Code):
-            return _const(expr.value)
-        if isinstance(expr, n.Ref):
-            entry = self.q.symbols.get(expr.name)
-            if entry is not None and entry.kind == "let" and entry.own is not None:
-                return self.num(entry.own)
-            return self.var(expr.name)
-        if isinstance(expr, n.Neg):
-            return -self.num(expr.operand)
-        if isinstance(expr, n.Arith):
-            a, b = self.num(expr.left), self.num(expr.right)
-            return {"+": a + b, "-": a - b, "*": a * b, "/": a / b}[expr.op]
-        raise Untranslatable(type(expr).__name__)
-
-    def cond(self, expr: Any) -> z3.BoolRef:
-        if isinstance(expr, n.Not):
-            return z3.Not(self.cond(expr.operand))
-        if isinstance(expr, n.And):
-            return z3.And([self.cond(o) for o in expr.operands])
-        if isinstance(expr, n.Or):
-            return z3.Or([self.cond(o) for o in expr.operands])
-        if isinstance(expr, n.Compare):
-            a, b = self.num(expr.left), self.num(expr.right)
-            return {"=": a == b, "!=": a != b, "<": a < b, "<=": a <= b, ">": a > b, ">=": a >= b}[expr.op]
-        if isinstance(expr, n.InList):
-            a = self.num(expr.subject)
-            return z3.Or([a == self.num(v) for v in expr.values])
-        if isinstance(expr, n.InRange):
-            a = self.num(expr.subject)
-            return z3.And(a >= _const(expr.lo), a <= _const(expr.hi))
-        if isinstance(expr, n.Func) and expr.func == "answered":
-            return z3.BoolVal(not _is_blank(self.record.get(expr.name)))
-        if isinstance(expr, n.Ref):
-            entry = self.q.symbols.get(expr.name)
-            if entry is not None and entry.kind == "let" and entry.own is not None:
-                return self.cond(entry.own)
-        raise Untranslatable(type(expr).__name__)
+def _number(v: Any) -> float | None:
+    if v is None:
+        return None
+    if isinstance(v, (int, float)):
+        return None if isinstance(v, float) and math.isnan(v) else float(v)
+    text = str(v).strip()
+    if not text:
+        return None
+    try:
+        return float(text)
+    except ValueError:
+        return math.nan  # recorded, but not a number: it must change
 
 
 def _const(x: float) -> z3.ArithRef:
-    return z3.RealVal(str(int(x)) if float(x).is_integer() else repr(float(x)))
+    return z3.IntVal(int(x)) if float(x).is_integer() else z3.RealVal(repr(float(x)))
 
 
 def _float(v: z3.ExprRef) -> float:
@@ -126,10 +55,97 @@ def _float(v: z3.ExprRef) -> float:
     return float(v.as_fraction())
 
 
-def _rule(enc: _Encoder, entry: Entry) -> z3.BoolRef:
-    applies = [enc.cond(c) for c in entry.conditions()]
-    require = enc.cond(entry.require)
-    return z3.Implies(z3.And(applies), require) if applies else require
+class Repairer:
+    """Built once per questionnaire; `hint(record)` per respondent."""
+
+    def __init__(self, q: Questionnaire, weights: Mapping[str, float] | None = None, timeout_ms: int = 10_000) -> None:
+        self.q = q
+        self.enc = Encoding(q)
+        self.weights = dict(weights or {})
+        self.timeout_ms = timeout_ms
+        self.checks = [e for e in q.entries if e.kind == "check" and e.require is not None]
+        self.skipped = [e.name for e in self.checks if e.index in self.enc.unencodable]
+        self.names = [e.name for e in q.entries if e.kind in ("item", "sample") and e.stmt.type.kind != "note"]
+
+    def _state(self, name: str, record: Mapping[str, Any]) -> tuple[z3.BoolRef, bool]:
+        """The constraint 'this item is as recorded', and whether it has a value."""
+        entry = self.q.symbols[name]
+        kind = entry.stmt.type.kind
+        enc = self.enc
+        if kind == "multi":
+            opts = enc._options.get(name, {})
+            cells = {code: _number(record.get(f"{name}_{code}")) for code in opts}
+            chosen = {code for code, v in cells.items() if v == 1}
+            bad = any(v is not None and v not in (0, 1) for v in cells.values())
+            has = bool(chosen) or bad
+            if bad:
+                return z3.BoolVal(False), True
+            fixed = [opt == (code in chosen) for code, opt in opts.items()]
+            return (z3.And(enc.answered(name), *fixed) if has else z3.Not(enc.answered(name))), has
+        if kind == "text":
+            raw = record.get(name)
+            has = raw is not None and str(raw).strip() != "" and not (isinstance(raw, float) and math.isnan(raw))
+            return (enc.answered(name) if has else z3.Not(enc.answered(name))), has
+        v = _number(record.get(name))
+        if v is None:
+            return z3.Not(enc.answered(name)), False
+        if math.isnan(v):
+            return z3.BoolVal(False), True
+        return z3.And(enc.answered(name), enc.value(name) == _const(v)), True
+
+    def hint(self, record: Mapping[str, Any], max_alternatives: int = 10) -> RepairHint | None:
+        """The cheapest change set, or None when the record already satisfies every rule
+        and the routing (or nothing can be found in time)."""
+        enc = self.enc
+        changed = {name: z3.Bool(f"changed:{name}") for name in self.names}
+        base: list[z3.BoolRef] = [*enc.facts(), *[z3.Not(enc.fails(e)) for e in self.checks]]
+        states = []
+        for name in self.names:
+            same, has = self._state(name, record)
+            states.append(z3.Implies(z3.Not(changed[name]), same))
+            if self.q.symbols[name].kind == "item":
+                # A changed answer stays an answer wherever the routing asks the item.
+                follow = enc.answered(name) == enc.asked(name) if has else enc.answered(name)
+                states.append(z3.Implies(changed[name], follow))
+        probe = z3.Solver()
+        probe.set("timeout", self.timeout_ms)
+        probe.add(*base, *states, *[z3.Not(c) for c in changed.values()])
+        if probe.check() == z3.sat:
+            return None
+        cost = z3.Sum([z3.If(c, _const(float(self.weights.get(n, 1.0))), _const(0)) for n, c in changed.items()])
+        found: list[tuple[list[str], float, dict[str, float | None]]] = []
+        blocks: list[z3.BoolRef] = []
+        best: float | None = None
+        while len(found) <= max_alternatives:
+            opt = z3.Optimize()
+            opt.set("timeout", self.timeout_ms)
+            opt.add(*base, *states, *blocks)
+            if best is not None:
+                opt.add(cost <= _const(best))
+            opt.minimize(cost)
+            if opt.check() != z3.sat:
+                break
+            model = opt.model()
+            chosen = sorted(n for n, c in changed.items() if z3.is_true(model.eval(c, model_completion=True)))
+            value = _float(model.eval(cost, model_completion=True))
+            if best is None:
+                best = value
+            elif value > best:
+                break
+            found.append((chosen, value, {n: self._value(model, n) for n in chosen}))
+            # Block this set and its supersets: only other minimal sets remain.
+            blocks.append(z3.Not(z3.And([changed[c] for c in chosen])) if chosen else z3.BoolVal(False))
+        if not found:
+            return None
+        items, value, values = found[0]
+        return RepairHint(items, value, values, [f[0] for f in found[1:]], list(self.skipped))
+
+    def _value(self, model: z3.ModelRef, name: str) -> float | None:
+        if not z3.is_true(model.eval(self.enc.answered(name), model_completion=True)):
+            return None
+        if name in self.enc._values:
+            return _float(model.eval(self.enc.value(name), model_completion=True))
+        return math.nan  # a set or a text: changed, no single number to show
 
 
 def repair_hint(
@@ -139,56 +155,6 @@ def repair_hint(
     max_alternatives: int = 10,
     timeout_ms: int = 10_000,
 ) -> RepairHint | None:
-    """The cheapest set of items to change so every check holds; None when the record
-    already satisfies every rule the encoding reads, or no change can."""
-    weights = weights or {}
-    enc = _Encoder(q, record)
-    rules: list[z3.BoolRef] = []
-    skipped: list[str] = []
-    for entry in q.entries:
-        if entry.kind != "check" or entry.require is None:
-            continue
-        try:
-            rules.append(_rule(enc, entry))
-        except Untranslatable:
-            skipped.append(entry.name)
-    if not enc.vars:
-        return None
-    changed = {name: z3.Bool(f"changed__{name}") for name in enc.vars}
-    keep = []
-    for name, v in enc.vars.items():
-        keep.append(z3.Implies(z3.Not(changed[name]), v == _const(float(record[name]))))
-    # Already consistent?
-    probe = z3.Solver()
-    probe.add(*rules, *[v == _const(float(record[name])) for name, v in enc.vars.items()])
-    if probe.check() == z3.sat:
-        return None
-    cost_terms = [z3.If(c, _const(float(weights.get(name, 1.0))), _const(0)) for name, c in changed.items()]
-    cost = z3.Sum(cost_terms)
-    found: list[tuple[list[str], float, dict[str, float]]] = []
-    blocks: list[z3.BoolRef] = []
-    best: float | None = None
-    while len(found) <= max_alternatives:
-        opt = z3.Optimize()
-        opt.set("timeout", timeout_ms)
-        opt.add(*enc.domain, *keep, *rules, *blocks)
-        if best is not None:
-            opt.add(cost <= _const(best))
-        opt.minimize(cost)
-        if opt.check() != z3.sat:
-            break
-        model = opt.model()
-        chosen = sorted(name for name, c in changed.items() if z3.is_true(model.eval(c, model_completion=True)))
-        value = _float(model.eval(cost, model_completion=True))
-        if best is None:
-            best = value
-        elif value > best:
-            break
-        new_values = {name: _float(model.eval(enc.vars[name], model_completion=True)) for name in chosen}
-        found.append((chosen, value, new_values))
-        # Block this set and every superset: only other minimal sets remain.
-        blocks.append(z3.Not(z3.And([changed[c] for c in chosen])) if chosen else z3.BoolVal(False))
-    if not found:
-        return None
-    items, value, new_values = found[0]
-    return RepairHint(items, value, new_values, [f[0] for f in found[1:]], skipped)
+    """One-off form of `Repairer(q, weights).hint(record)`; `record` maps export columns
+    (default layout) to cells."""
+    return Repairer(q, weights, timeout_ms).hint(record, max_alternatives)

@@ -56,9 +56,11 @@ def test_defaults_blank_cells_and_only_flag(tmp_path: Path) -> None:
     assert s["threshold_sources"]["speed.fraction_of_median"] == "common practice, no source"
     assert s["policy"]["respondents"] == {}
     assert any("bias" in n for n in s["notes"])
-    # The failed edit rule gets a repair hint: change the number of items (or `borrow`).
+    # The failed edit rule gets a repair hint: the number of items, and the invalid grid
+    # code (saying nothing was borrowed would also put items_n out of path).
     hint = next(h for h in s["repair_hints"] if h["respondent"] == "x-bad")
-    assert sorted([hint["change"], *hint["alternatives"]]) == [["borrow"], ["items_n"]]
+    assert hint["change"] == ["items_n", "s_hours"] and hint["alternatives"] == []
+    assert hint["example_values"]["items_n"] >= 1
     # Clean respondents are untouched, cell for cell.
     original = read_export(data)
     cleaned = read_sheet_csv(tmp_path / "out" / "export.cleaned.csv")

@@ -58,5 +58,24 @@ check hours_ok "Workers report hours" when works = yes require hours >= 1
     q = load_text(spec).questionnaire
     hint = repair_hint(q, {"works": 1, "hours": 0})
     assert hint is not None
-    # Either the hours are wrong, or the person does not work: both cost one change.
+    # Saying the person does not work would also make `hours` out of path, so it costs
+    # two changes (works, and blanking hours): the one minimal repair is the hours.
+    assert hint.items == ["hours"] and hint.alternatives == []
+    assert hint.values["hours"] >= 1
+
+
+def test_routing_must_hold_too() -> None:
+    spec = """survey t "t"
+codes yn
+  yes = 1 "Yes"
+  no = 2 "No"
+works: single yn "Do you work?"
+hours: number 0..100 "Hours" when works = yes
+"""
+    q = load_text(spec).questionnaire
+    # An answer where the routing does not ask: blank it (one change) or say the
+    # person works (one change); no check involved, the routing alone.
+    hint = repair_hint(q, {"works": 2, "hours": 20})
+    assert hint is not None
     assert sorted([hint.items, *hint.alternatives]) == [["hours"], ["works"]]
+    assert repair_hint(q, {"works": 2, "hours": None}) is None
