@@ -41,3 +41,18 @@ def test_route_state_agrees_with_validation(tmp_path: Path, case: int) -> None:
     failed = {(f.respondent, f.item) for f in theirs.findings if f.check == "check-failed"}
     mine = {(ours.ids[r], name) for name, m in ours.checks_failed.items() for r in np.flatnonzero(m)}
     assert {r for r, _ in mine} == {r for r, _ in failed}
+
+
+def test_quality_on_a_validation_result_matches(tmp_path: Path) -> None:
+    from logiccheck.quality.bridge import as_data_findings, state_from_validation
+    from logiccheck.quality.run import run_quality
+
+    q, path = cases(tmp_path)[0]
+    data = read_export(path)
+    theirs = validate(q, path, keep_cells=True)
+    via_validation = run_quality(q, data, state=state_from_validation(q, theirs))
+    standalone = run_quality(q, data)
+    assert [(f.check, f.row) for f in via_validation.findings] == [(f.check, f.row) for f in standalone.findings]
+    np.testing.assert_array_equal(via_validation.state.nonresponse, standalone.state.nonresponse)
+    records = as_data_findings(via_validation.findings)
+    assert records[0].row == via_validation.findings[0].row + 1 and records[0].to_json()["check"]

@@ -1,0 +1,43 @@
+"""Between the data stage and the quality stage: a route state from a `ValidationResult`,
+and quality findings as data-stage `Finding` records (one list for every reporter)."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from logiccheck.data.findings import Finding as DataFinding
+from logiccheck.data.result import ValidationResult
+from logiccheck.model.questionnaire import Questionnaire
+from logiccheck.quality.findings import Finding
+from logiccheck.quality.route import RouteState, item_columns
+
+
+def state_from_validation(q: Questionnaire, result: ValidationResult) -> RouteState:
+    """The route state the data stage computed (validate with `keep_cells=True`)."""
+    if result.due is None or result.has_value is None or result.valid is None:
+        raise ValueError("validate with keep_cells=True to run the quality checks on its result")
+    n = result.respondents
+    nr_codes = [o.value for o in q.nonresponse]
+    nonresponse = np.zeros_like(result.valid)
+    for j, name in enumerate(result.items):
+        entry = q.symbols[name]
+        if result.frame is not None and name in result.frame.columns and q.allows_nonresponse(entry.stmt):
+            values = result.frame[name].to_numpy(dtype=float, na_value=np.nan)
+            nonresponse[:, j] = result.valid[:, j] & np.isin(values, nr_codes)
+    stops = {e.name: np.asarray(result.stop == e.name) for e in q.entries if e.kind == "stop"}
+    failed = {e.name: np.zeros(n, bool) for e in q.entries if e.kind == "check"}
+    for f in result.findings:
+        if f.check == "check-failed" and f.item in failed and f.row is not None:
+            failed[f.item][f.row - 1] = True
+    columns = {name: item_columns(q, q.symbols[name]) for name in result.items}
+    return RouteState([str(i) for i in result.ids], list(result.items), result.due, result.has_value, result.valid,
+                      nonresponse, stops, failed, columns)
+
+
+def as_data_findings(findings: list[Finding]) -> list[DataFinding]:
+    """Quality findings in the data stage's record shape (1-based rows, values as text)."""
+    return [
+        DataFinding(check=f.check, severity=f.severity, respondent=f.respondent, row=f.row + 1, item=f.item,
+                    value=None if f.value is None else str(f.value), message=f.message)
+        for f in findings
+    ]
