@@ -164,3 +164,41 @@ def test_policy_file_errors(tmp_path: Path) -> None:
         load_policy(p)
     p.write_text("[tool.logiccheck.quality.duplicates]\nnear_threshold = 0.9\n")
     assert load_policy(p)[1].duplicates.near_threshold == 0.9
+
+
+def test_xlsx_output_holds_no_formula(tmp_path: Path) -> None:
+    import openpyxl
+
+    spec, data, fr = setup(tmp_path)
+    xlsx = tmp_path / "export.xlsx"
+    book = openpyxl.Workbook()
+    ws = book.active
+    original = read_export(data)
+    ws.append(list(original.columns))
+    for row in original.itertuples(index=False):
+        ws.append(list(row))
+    for row in ws.iter_rows():
+        for cell in row:
+            cell.data_type = "s"  # the input holds the text, not a formula
+    book.save(xlsx)
+    assert read_export(xlsx).equals(original)
+    q = load_text(SPEC, str(spec)).questionnaire
+    clean_export(q, xlsx, tmp_path / "out", sample_frame=fr)
+    sheet = openpyxl.load_workbook(tmp_path / "out" / "export.cleaned.xlsx").active
+    cells = [c.value for row in sheet.iter_rows() for c in row if isinstance(c.value, str)]
+    assert "'=HYPERLINK(\"http://x\",\"y\")" in cells
+    assert not any(c.data_type == "f" for row in sheet.iter_rows() for c in row)
+
+
+def test_escape_is_reversible_for_any_text() -> None:
+    from hypothesis import given, settings
+    from hypothesis import strategies as st
+
+    @settings(max_examples=300, deadline=None)
+    @given(st.text(alphabet=st.sampled_from(list("=+-@'\t\r 1.e5ab")), max_size=8))
+    def roundtrip(cell: str) -> None:
+        assert unescape(escape(cell)) == cell
+        if escape(cell) != cell:
+            assert escape(cell).startswith("'")
+
+    roundtrip()
