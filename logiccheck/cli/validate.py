@@ -14,6 +14,7 @@ from logiccheck.data import DataMapping, DataReadError, MappingError, Validation
 from logiccheck.data.readers import DEFAULT_CHUNK_ROWS
 from logiccheck.diagnostics import Severity
 from logiccheck.load import Loaded, SpecReadError, load_file
+from logiccheck.quality.attach import attach_quality
 from logiccheck.report.data_csv import items_csv, write_csv_dir
 from logiccheck.report.data_json import validation_json
 from logiccheck.report.data_text import render_validation
@@ -78,9 +79,10 @@ def run_validation(
         bar.update(state["task"], completed=rows)  # type: ignore[attr-defined]
 
     try:
-        return validate(
+        result = validate(
             loaded.questionnaire, data, mapping, encoding=encoding, chunk_rows=chunk_rows, keep_cells=False, progress=progress
         )
+        return attach_quality(loaded.questionnaire, result, data, mapping, encoding=encoding)
     except DataReadError as err:
         fail(str(err))
     finally:

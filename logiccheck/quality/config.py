@@ -39,6 +39,9 @@ class DuplicateConfig(_Strict):
     # Pairs compared over fewer items than this are not scored (common practice, no source).
     near_min_items: int = Field(10, ge=1)
     chunk_size: int = Field(2000, ge=1)
+    # Above this many respondents `validate` skips near-duplicates (the cost grows with
+    # the square of the count; `clean` always runs them). 50,000 take well under a minute.
+    near_max_respondents: int = Field(100_000, ge=2)
 
 
 class CarelessConfig(_Strict):
