@@ -66,7 +66,12 @@ def attach_quality(
             f"near-duplicate not checked: {full.respondents} respondents is above "
             f"[quality.duplicates] near_max_respondents = {dc.near_max_respondents}"
         )
-    quality = run_quality(q, frame, config, sample_frame, id_column="id" if "id" in frame.columns else mapping.id, state=state)
+    try:
+        quality = run_quality(q, frame, config, sample_frame, id_column="id" if "id" in frame.columns else mapping.id, state=state)
+    except (ValueError, KeyError) as err:
+        # Validation itself stands; say plainly what was not checked.
+        result.notes.append(f"quality checks not run: {err}")
+        return result
     for f in quality.findings:
         result.blocks.append(
             FindingBlock(f.check, f.severity, f.item, f.message, np.array([f.row]), np.array([f.respondent], dtype=object),
