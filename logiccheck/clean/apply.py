@@ -66,8 +66,12 @@ def _removals(q: Questionnaire, result: QualityResult, policy: CleanPolicy) -> d
     return out
 
 
-def apply_policy(q: Questionnaire, frame: pd.DataFrame, result: QualityResult, policy: CleanPolicy) -> CleanOutcome:
-    """`frame` holds the export's cells as text ("" = empty); it is not modified."""
+def apply_policy(
+    q: Questionnaire, frame: pd.DataFrame, result: QualityResult, policy: CleanPolicy, markers: set[str] | None = None
+) -> CleanOutcome:
+    """`frame` holds the export's cells as text ("" = empty); it is not modified. Cells
+    whose trimmed text is in `markers` (blank / not-shown markers) are left alone."""
+    markers = markers or {""}
     state = result.state
     cleaned = frame.copy()
     records: list[dict[str, object]] = []
@@ -80,7 +84,7 @@ def apply_policy(q: Questionnaire, frame: pd.DataFrame, result: QualityResult, p
             if col not in frame.columns:
                 continue
             cells = frame[col].to_numpy(dtype=object)
-            nonempty = np.array([str(c).strip() != "" for c in cells], dtype=bool)
+            nonempty = np.array([str(c).strip() not in markers for c in cells], dtype=bool)
             todo: list[tuple[np.ndarray, str, str]] = []
             if policy.blank_out_of_path:
                 cond = _condition_text(q, item)

@@ -12,7 +12,11 @@ from logiccheck import __version__
 from logiccheck.clean.apply import CleanOutcome, apply_policy
 from logiccheck.clean.io import ExportError, export_format, file_hash, read_export, write_json, write_table
 from logiccheck.clean.policy import BIAS_WARNING, CleanPolicy
+from logiccheck.data.mapping import DataMapping
+from logiccheck.data.readers import DataReadError
+from logiccheck.data.validate import validate
 from logiccheck.model.questionnaire import Questionnaire
+from logiccheck.quality.bridge import state_from_validation
 from logiccheck.quality.config import SOURCES, QualityConfig
 from logiccheck.quality.rates import OutcomeCounts, dispositions_to_counts, outcome_rates
 from logiccheck.quality.repair import Repairer
@@ -45,6 +49,32 @@ def _repair_hints(q: Questionnaire, frame: pd.DataFrame, result: QualityResult, 
     return hints
 
 
+def _mapped_quality(
+    q: Questionnaire, export: Path, mapping: DataMapping, config: QualityConfig, sf: pd.DataFrame | None
+) -> tuple[QualityResult, set[str]]:
+    """Route state and quality findings through the data stage's reader and mapping; the
+    state's columns are the export's own names."""
+    try:
+        full = validate(q, export, mapping)
+    except DataReadError as err:
+        raise ExportError(str(err)) from None
+    state = state_from_validation(q, full)
+    for name in state.items:
+        entry = q.symbols[name]
+        if entry.stmt.type.kind == "multi" and mapping.multi.layout == "columns":
+            codes = q.item_codes(entry.stmt)
+            state.columns[name] = [mapping.option_column(name, o.value) for o in (codes.options if codes else [])]
+        elif entry.stmt.type.kind != "note":
+            state.columns[name] = [mapping.column_of(name)]
+    typed = full.frame.reset_index(drop=True).copy() if full.frame is not None else pd.DataFrame({"id": state.ids})
+    raw = read_export(export)
+    for c in (config.speed.duration_column, config.frame.email_column):
+        if c in raw.columns and c not in typed.columns:
+            typed[c] = raw[c].to_numpy()
+    markers = {*mapping.blank_markers(), *(m.strip() for m in mapping.not_shown), *(m.strip() for m in mapping.unanswered)}
+    return run_quality(q, typed, config, sf, id_column="id", state=state), markers
+
+
 def clean_export(
     q: Questionnaire,
     export: Path,
@@ -53,14 +83,23 @@ def clean_export(
     config: QualityConfig | None = None,
     sample_frame: Path | None = None,
     sample_outcomes: OutcomeCounts | None = None,
+    mapping: DataMapping | None = None,
 ) -> CleanRun:
+    """`mapping` None: the default layout (DESIGN §6). With a mapping, the data stage's
+    reader and evaluator give the route state, and cells holding a blank, not-shown or
+    not-answered marker are left as they are."""
     policy = policy or CleanPolicy()
     config = config or QualityConfig()
     fmt = export_format(export)
     frame = read_export(export)
     sf = read_export(sample_frame) if sample_frame is not None else None
-    result = run_quality(q, frame, config, sf)
-    outcome = apply_policy(q, frame, result, policy)
+    if mapping is None:
+        result, markers = run_quality(q, frame, config, sf), {""}
+    else:
+        if config.speed.duration_column == "duration":
+            config = config.model_copy(update={"speed": config.speed.model_copy(update={"duration_column": mapping.duration})})
+        result, markers = _mapped_quality(q, export, mapping, config, sf)
+    outcome = apply_policy(q, frame, result, policy, markers)
 
     stem = export.stem
     main_out = out / f"{stem}.cleaned{export.suffix.lower()}"

@@ -1,4 +1,4 @@
-"""`logiccheck clean SPEC --data EXPORT --out DIR [--policy FILE] [--frame FILE] [--sample FILE]`"""
+"""`logiccheck clean SPEC --data EXPORT --out DIR [--policy FILE] [--map FILE] [--frame FILE] [--sample FILE]`"""
 
 from __future__ import annotations
 
@@ -12,6 +12,7 @@ from logiccheck.clean.policy import BIAS_WARNING, PolicyError, load_policy
 from logiccheck.clean.run import clean_export
 from logiccheck.cli.common import EXIT_OK, color_option, fail, make_console
 from logiccheck.cli.rates import read_outcomes
+from logiccheck.data.mapping import MappingError, load_mapping
 from logiccheck.load import SpecReadError, load_file
 from logiccheck.quality.completeness import RuleError
 from logiccheck.quality.rates import RatesError
@@ -23,11 +24,12 @@ from logiccheck.quality.route import RouteError
 @click.option("--data", "data", required=True, type=click.Path(dir_okay=False), help="The export (.csv, .parquet, .xlsx).")
 @click.option("--out", "out", required=True, type=click.Path(file_okay=False), help="Folder for the cleaned export, audit.csv and summary.json.")
 @click.option("--policy", "policy_file", type=click.Path(dir_okay=False), help="TOML with [clean] and [quality] tables.")
+@click.option("--map", "map_file", type=click.Path(dir_okay=False), help="Data mapping (TOML; keys top-level or under [data]).")
 @click.option("--frame", "frame_file", type=click.Path(dir_okay=False), help="Sample frame CSV (column id, optionally email).")
 @click.option("--sample", "sample_file", type=click.Path(dir_okay=False), help="Final outcome of every sampled case, for the outcome rates.")
 @color_option
-def clean_command(spec: str, data: str, out: str, policy_file: str | None, frame_file: str | None,
-                  sample_file: str | None, color: str) -> None:
+def clean_command(spec: str, data: str, out: str, policy_file: str | None, map_file: str | None,
+                  frame_file: str | None, sample_file: str | None, color: str) -> None:
     """Apply a cleaning policy to an export; write the cleaned file and an audit trail."""
     try:
         loaded = load_file(spec)
@@ -39,9 +41,10 @@ def clean_command(spec: str, data: str, out: str, policy_file: str | None, frame
     try:
         policy, config = load_policy(policy_file)
         outcomes = read_outcomes(Path(sample_file)) if sample_file else None
+        mapping = load_mapping(map_file) if map_file else None
         run = clean_export(loaded.questionnaire, Path(data), Path(out), policy, config,
-                           Path(frame_file) if frame_file else None, outcomes)
-    except (PolicyError, ExportError, RuleError, RatesError, RouteError) as err:
+                           Path(frame_file) if frame_file else None, outcomes, mapping)
+    except (PolicyError, ExportError, RuleError, RatesError, RouteError, MappingError) as err:
         fail(str(err))
     console = make_console(color)
     s = run.summary

@@ -202,3 +202,25 @@ def test_escape_is_reversible_for_any_text() -> None:
             assert escape(cell).startswith("'")
 
     roundtrip()
+
+
+def test_mapped_layout_renamed_columns_and_markers(tmp_path: Path) -> None:
+    from logiccheck.data.mapping import DataMapping
+
+    spec, data, fr = setup(tmp_path)
+    original = read_export(data)
+    mapped = original.rename(columns={"id": "case", "visits": "q_visits", "duration": "secs"})
+    # The fielding tool wrote "-77" for items it did not show.
+    mapped.loc[mapped["member"] == "2", "q_visits"] = mapped.loc[mapped["member"] == "2", "q_visits"].replace("", "-77")
+    mapped.loc[mapped["case"] == "x-oop", "q_visits"] = "5"
+    path = tmp_path / "mapped.csv"
+    mapped.to_csv(path, index=False)
+    mapping = DataMapping(id="case", duration="secs", columns={"visits": "q_visits"}, not_shown=["-77"])
+    q = load_text(SPEC, str(spec)).questionnaire
+    # the sample frame keys on `id`
+    run = clean_export(q, path, tmp_path / "out", sample_frame=fr, mapping=mapping)
+    changes = {(r.respondent, r.column, r.check) for r in run.outcome.audit.itertuples()}
+    assert changes == {("x-oop", "q_visits", "out-of-path"), ("x-bad", "s_hours", "invalid-value")}
+    assert run.summary["findings"]["speeder"] == 1
+    restored = reverse_audit(read_sheet_csv(tmp_path / "out" / "mapped.cleaned.csv"), read_sheet_csv(tmp_path / "out" / "audit.csv"))
+    pd.testing.assert_frame_equal(restored, read_export(path))
