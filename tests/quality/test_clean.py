@@ -26,12 +26,15 @@ def setup(tmp: Path) -> tuple[Path, Path, Path]:
         # Out of path: a non-member who also answered the members' visits question.
         {**dict.fromkeys(COLUMNS, ""), "id": "x-oop", "email": "x-oop@example.org", "age": "50", "member": "2",
          "why_no": "1", "visits": "5", "overall": "6", "duration": "590"},
+        # Cascade: a non-member whose export also holds the borrowing gate and its follow-up.
+        {**dict.fromkeys(COLUMNS, ""), "id": "x-cascade", "email": "x-cascade@example.org", "age": "44", "member": "2",
+         "why_no": "2", "borrow": "1", "items_n": "3", "overall": "8", "duration": "600"},
         # An invalid code in the grid, a formula-like comment, and a failed edit rule.
         card_row("x-bad", [2, 3, 7, 1, 4, 5, 2, 3], items_n=0, comments="=HYPERLINK(\"http://x\",\"y\")"),
         card_row("x-neg", [1, 2, 3, 4, 5, 1, 2, 4], comments="-not a number, but starts like one"),
     ]
     export = pd.concat([export, pd.DataFrame(extra, columns=COLUMNS).astype(str)], ignore_index=True)
-    frame = pd.concat([frame, pd.DataFrame({"id": ["x-oop", "x-bad", "x-neg"], "email": [""] * 3})])
+    frame = pd.concat([frame, pd.DataFrame({"id": ["x-oop", "x-cascade", "x-bad", "x-neg"], "email": [""] * 4})])
     spec, data, fr = tmp / "lib.qlc", tmp / "export.csv", tmp / "frame.csv"
     spec.write_text(SPEC)
     export.to_csv(data, index=False)
@@ -47,7 +50,12 @@ def test_defaults_blank_cells_and_only_flag(tmp_path: Path) -> None:
     assert (file_hash(data), data.stat().st_mtime_ns) == before  # the input is never modified
     audit = run.outcome.audit
     changes = {(r.respondent, r.column, r.check) for r in audit.itertuples()}
-    assert changes == {("x-oop", "visits", "out-of-path"), ("x-bad", "s_hours", "invalid-value")}
+    assert changes == {
+        ("x-oop", "visits", "out-of-path"),
+        ("x-cascade", "borrow", "out-of-path"),
+        ("x-cascade", "items_n", "out-of-path"),  # borrow = yes was not allowed, so it opens nothing
+        ("x-bad", "s_hours", "invalid-value"),
+    }
     assert len(run.outcome.cleaned) == len(read_export(data))  # flag only: nobody removed
     s = run.summary
     assert s["input"]["sha256"] == before[0] and s["version"]
@@ -64,7 +72,7 @@ def test_defaults_blank_cells_and_only_flag(tmp_path: Path) -> None:
     # Clean respondents are untouched, cell for cell.
     original = read_export(data)
     cleaned = read_sheet_csv(tmp_path / "out" / "export.cleaned.csv")
-    untouched = ~original["id"].isin(["x-oop", "x-bad"])
+    untouched = ~original["id"].isin(["x-oop", "x-cascade", "x-bad"])
     pd.testing.assert_frame_equal(cleaned[untouched].reset_index(drop=True), original[untouched].reset_index(drop=True))
 
 
@@ -220,7 +228,12 @@ def test_mapped_layout_renamed_columns_and_markers(tmp_path: Path) -> None:
     # the sample frame keys on `id`
     run = clean_export(q, path, tmp_path / "out", sample_frame=fr, mapping=mapping)
     changes = {(r.respondent, r.column, r.check) for r in run.outcome.audit.itertuples()}
-    assert changes == {("x-oop", "q_visits", "out-of-path"), ("x-bad", "s_hours", "invalid-value")}
+    assert changes == {
+        ("x-oop", "q_visits", "out-of-path"),
+        ("x-cascade", "borrow", "out-of-path"),
+        ("x-cascade", "items_n", "out-of-path"),
+        ("x-bad", "s_hours", "invalid-value"),
+    }
     assert run.summary["findings"]["speeder"] == 1
     restored = reverse_audit(read_sheet_csv(tmp_path / "out" / "mapped.cleaned.csv"), read_sheet_csv(tmp_path / "out" / "audit.csv"))
     pd.testing.assert_frame_equal(restored, read_export(path))
