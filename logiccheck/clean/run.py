@@ -11,7 +11,7 @@ import pandas as pd
 from logiccheck import __version__
 from logiccheck.clean.apply import CleanOutcome, apply_policy
 from logiccheck.clean.io import ExportError, export_format, file_hash, read_export, write_json, write_table
-from logiccheck.clean.policy import BIAS_WARNING, CleanPolicy
+from logiccheck.clean.policy import BIAS_WARNING, CleanPolicy, PolicyError
 from logiccheck.data.mapping import DataMapping
 from logiccheck.data.readers import DataReadError
 from logiccheck.data.validate import validate
@@ -99,6 +99,14 @@ def clean_export(
         if config.speed.duration_column == "duration":
             config = config.model_copy(update={"speed": config.speed.model_copy(update={"duration_column": mapping.duration})})
         result, markers = _mapped_quality(q, export, mapping, config, sf)
+    if policy.keep_dispositions is not None:
+        known = {"complete", "partial", "break-off", *(e.name for e in q.entries if e.kind == "stop")}
+        unknown = [d for d in policy.keep_dispositions if d not in known]
+        if unknown:
+            raise PolicyError(
+                f"[clean] keep_dispositions: no disposition is called {unknown[0]!r}; "
+                f"the dispositions are {', '.join(sorted(known))}"
+            )
     outcome = apply_policy(q, frame, result, policy, markers)
 
     stem = export.stem

@@ -38,6 +38,17 @@ def duplicate_responses(ids: Sequence[object], answers: pd.DataFrame, min_answer
     groups: dict[int, list[int]] = {}
     for r in np.flatnonzero(enough):
         groups.setdefault(int(keys[r]), []).append(int(r))
+    values = frame.astype(str).to_numpy()
+    for key, rows in list(groups.items()):
+        if len(rows) < 2:
+            continue
+        # A hash is not proof: split the group by the rows' actual cells.
+        exact: dict[tuple[str, ...], list[int]] = {}
+        for r in rows:
+            exact.setdefault(tuple(values[r]), []).append(r)
+        del groups[key]
+        for i, sub in enumerate(exact.values()):
+            groups[hash((key, i))] = sub
     for rows in groups.values():
         if len(rows) < 2:
             continue
@@ -108,7 +119,8 @@ def max_percent_match(
             raise ValueError("basis 'asked' needs the asked matrix")
         not_asked = ~np.asarray(asked, dtype=bool)
         neither_onehot = _one_hot(codes, not_asked)  # same value on an item neither was asked
-        na = not_asked.astype(np.float32)
+        # Items asked of everyone add nothing to "neither was asked".
+        na = not_asked[:, not_asked.any(axis=0)].astype(np.float32)
     elif basis == "all":
         neither_onehot = na = None
     else:
@@ -124,6 +136,8 @@ def max_percent_match(
     matches_buf = np.empty((c, c), dtype=np.float32)
     denom_buf = np.empty((c, c), dtype=np.float32)
     other_buf = np.empty((c, c), dtype=np.float32)
+    low_buf = np.empty((c, c), dtype=bool)
+    lower = np.tri(c, c, 0, dtype=bool)  # self and the lower triangle of a diagonal tile
     for r0 in range(0, n, c):
         r1 = min(r0 + c, n)
         for c0 in range(r0, n, c):
@@ -138,15 +152,16 @@ def max_percent_match(
                 else:
                     matches -= np.matmul(neither_onehot[r0:r1], neither_onehot[c0:c1].T, out=other_buf[:h, :w])
                 np.subtract(np.float32(m), denom, out=denom)
-                score = np.divide(matches, denom, out=other_buf[:h, :w], where=denom >= min_items)
-                score[denom < min_items] = -1.0
+                with np.errstate(divide="ignore", invalid="ignore"):
+                    score = np.divide(matches, denom, out=other_buf[:h, :w])
+                np.copyto(score, np.float32(-1.0), where=np.less(denom, min_items, out=low_buf[:h, :w]))
             else:
                 score = np.divide(matches, np.float32(m), out=other_buf[:h, :w])
                 if m < min_items:
                     score[:] = -1.0
             if r0 == c0:
                 # The diagonal (self) and the lower triangle are not pairs of this tile.
-                score[np.tril_indices(h, 0, w)] = -1.0
+                np.copyto(score, np.float32(-1.0), where=lower[:h, :w])
             _update(best, partner, compared, score, matches, denom, r0, c0, rows=True, m_all=m)
             _update(best, partner, compared, score, matches, denom, r0, c0, rows=False, m_all=m)
     result = np.where(best < 0, np.nan, best)
@@ -159,24 +174,32 @@ def _update(
 ) -> None:
     """Fold one tile into the running best per respondent: per row (rows=True) or per
     column of the tile."""
-    if not rows:
-        score, matches = score.T, matches.T
-        denom = None if denom is None else denom.T
-        row0, col0 = col0, row0
-    # A transposed view is argmax-ed along its contiguous axis after one copy.
-    score = np.ascontiguousarray(score)
-    arg = score.argmax(axis=1)
-    take = np.arange(score.shape[0])
-    ok = score[take, arg] >= 0
-    hit = matches[take, arg]
-    den = np.float64(m_all) if denom is None else denom[take, arg].astype(np.float64)
+    if rows:
+        arg = score.argmax(axis=1)
+        take = np.arange(score.shape[0])
+        idx = np.arange(row0, row0 + score.shape[0])
+        hit_at = (take, arg)
+        other = col0 + arg
+    else:
+        # Column maxima are cheap; the strided argmax runs only on columns that may improve.
+        colmax = score.max(axis=0)
+        cols = np.flatnonzero(colmax >= best[col0 : col0 + score.shape[1]] - 1e-6)
+        if cols.size == 0:
+            return
+        arg = np.ascontiguousarray(score[:, cols].T).argmax(axis=1)
+        idx = col0 + cols
+        hit_at = (arg, cols)
+        other = row0 + arg
+    ok = score[hit_at] >= 0
+    hit = matches[hit_at].astype(np.float64)
+    den = np.full(len(hit), float(m_all)) if denom is None else denom[hit_at].astype(np.float64)
     # Exact in float64 (float32 would put 17/20 above 0.85).
-    val = np.where(ok, hit.astype(np.float64) / den, -1.0)
-    idx = np.arange(row0, row0 + score.shape[0])
+    with np.errstate(divide="ignore", invalid="ignore"):
+        val = np.where(ok, hit / np.where(den > 0, den, 1.0), -1.0)
     better = val > best[idx]
     best[idx[better]] = val[better]
-    partner[idx[better]] = col0 + arg[better]
-    compared[idx[better]] = (np.full(len(val), den) if np.ndim(den) == 0 else den)[better].astype(np.int64)
+    partner[idx[better]] = other[better]
+    compared[idx[better]] = den[better].astype(np.int64)
 
 
 def near_duplicates(

@@ -157,6 +157,9 @@ def test_command_line(tmp_path: Path) -> None:
     policy.write_text('[clean]\nrespondents = { speedy = "drop" }\n')
     res = runner.invoke(cli, ["clean", str(spec), "--data", str(data), "--out", str(tmp_path / "o"), "--policy", str(policy)])
     assert res.exit_code == 2 and "unknown check 'speedy'" in res.output and "Traceback" not in res.output
+    policy.write_text('[clean]\nkeep_dispositions = ["completed"]\n')
+    res = runner.invoke(cli, ["clean", str(spec), "--data", str(data), "--out", str(tmp_path / "o"), "--policy", str(policy)])
+    assert res.exit_code == 2 and "no disposition is called 'completed'" in res.output
     res = runner.invoke(cli, ["clean", str(spec), "--data", str(data), "--out", str(tmp_path)])
     assert res.exit_code == 0  # writing beside the input is fine: file names never collide
     assert file_hash(data) == summary["input"]["sha256"]

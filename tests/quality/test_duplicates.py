@@ -33,15 +33,18 @@ def naive_max_match(values: np.ndarray, asked: np.ndarray | None, min_items: int
 
 @pytest.mark.parametrize("seed", [0, 1, 2])
 @pytest.mark.parametrize("basis", ["all", "asked"])
-def test_max_match_agrees_with_naive_pairs(seed: int, basis: str) -> None:
+@pytest.mark.parametrize("strays", [True, False])
+def test_max_match_agrees_with_naive_pairs(seed: int, basis: str, strays: bool) -> None:
     rng = np.random.default_rng(seed)
     n, m = 60, 12
     values = rng.integers(1, 4, size=(n, m)).astype(float)
     asked = rng.random((n, m)) < 0.7
-    values[~asked] = np.nan  # not asked: blank, mostly
+    asked[:, 0] = True  # an item asked of everyone
+    values[~asked] = np.nan  # not asked: blank
     values[rng.random((n, m)) < 0.05] = np.nan  # blanks where asked
-    stray = (~asked) & (rng.random((n, m)) < 0.2)
-    values[stray] = 2.0  # some out-of-path answers
+    if strays:
+        stray = (~asked) & (rng.random((n, m)) < 0.2)
+        values[stray] = 2.0  # some out-of-path answers
     values[5] = values[4]  # plant copies so high scores occur
     values[7, :10] = values[6, :10]
     frame = pd.DataFrame(values, columns=[f"q{i}" for i in range(m)])
@@ -92,3 +95,4 @@ def test_duplicate_ids_and_exact_copies() -> None:
     frame = pd.DataFrame({"x": [1, 2, 1, 1, np.nan], "y": [3, 3, 3, 3, np.nan], "z": [np.nan, 1, np.nan, 2, np.nan]})
     dup = duplicate_responses(ids, frame, min_answered=2)
     assert [f.row for f in dup] == [0, 2]
+    assert all(f.value == 0 for f in dup)  # the first row of the group
