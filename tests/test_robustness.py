@@ -7,6 +7,9 @@ from hypothesis import strategies as st
 
 from logiccheck.checks.runner import run_checks
 from logiccheck.load import load_text
+from logiccheck.report.graph_data import build_drawing
+from logiccheck.report.graph_dot import to_dot
+from logiccheck.report.graph_mermaid import to_mermaid
 from tests.conftest import SPECS
 
 SEEDS = [(SPECS / name).read_text(encoding="utf-8") for name in ("bikeshare.qlc", "clinic_visit.qlc", "onboarding.qlc")]
@@ -17,6 +20,8 @@ ALPHABET = PIECES
 
 def assert_only_diagnostics(text: str) -> None:
     loaded = load_text(text, "fuzz.qlc")
+    drawing = build_drawing(loaded.questionnaire)
+    assert to_dot(drawing).startswith("digraph") and "flowchart" in to_mermaid(drawing)
     diagnostics = run_checks(loaded, solver=False)
     for d in diagnostics:
         assert d.check != "internal-error", d.message
