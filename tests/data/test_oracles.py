@@ -106,6 +106,7 @@ def test_bikeshare_demo_agrees_with_both_oracles() -> None:
     result = validate(q, data)
     table, off, _ = sql_validate(q, str(data))
     assert {r["item"]: {k: int(r[k]) for k in table[r["item"]]} for r in result.table.to_dict("records")} == table
+    assert {(f.row, f.item) for f in result.findings if f.check in ("out-of-path", "after-stop")} == off
     states = interpret_csv(q, str(data))
     for j, item in enumerate(result.items):
         assert [s.due[item] for s in states] == result.due[:, j].tolist(), item
