@@ -6,6 +6,7 @@ from collections.abc import Iterable
 
 from logiccheck.checks.context import LintContext
 from logiccheck.checks.registry import all_checks
+from logiccheck.checks.suppress import apply_suppressions
 from logiccheck.diagnostics import Diagnostic, Severity, Span
 from logiccheck.load import Loaded
 
@@ -42,6 +43,8 @@ def run_checks(
                         message=f"check `{info.name}` failed: {type(err).__name__}: {err}",
                     )
                 )
+    ran = {n for n, c in checks.items() if c.stage in stages and n not in disabled}
+    out = apply_suppressions(out, loaded.questionnaire.text, loaded.questionnaire.file, ran=ran, known=checks)
     result = []
     for diag in out:
         if diag.check in disabled:
