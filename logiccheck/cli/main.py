@@ -5,6 +5,7 @@ from __future__ import annotations
 import click
 
 from logiccheck import __version__
+from logiccheck.cli.diff import diff_command
 from logiccheck.cli.explain import explain_command
 from logiccheck.cli.lint import lint_command
 
@@ -18,6 +19,7 @@ def cli() -> None:
 # One line per command module.
 cli.add_command(lint_command)
 cli.add_command(explain_command)
+cli.add_command(diff_command)
 
 
 def main() -> None:

@@ -86,9 +86,10 @@ def _answer_changes(old: Questionnaire, new: Questionnaire, oe: Entry, ne: Entry
         if m is not None and m.value != o.value:
             moved.append(f"`{label}` {o.value} → {m.value}")
     if moved:
+        first = next(m for lb, m in by_label_new.items() if lb in by_label_old and by_label_old[lb].value != m.value)
         out.append(
-            _change("recode", name, f"`{name}`: answers stored under other values: " + ", ".join(moved), **where,
-                    details={"moved": moved})
+            _change("recode", name, f"`{name}`: answers stored under other values: " + ", ".join(moved),
+                    old=oe.span, new=first.span, details={"moved": moved})
         )
     for label, o in by_label_old.items():
         m = by_label_new.get(label)

@@ -22,6 +22,9 @@ import z3
 from logiccheck.model import nodes as n
 from logiccheck.model.questionnaire import Entry, Questionnaire
 
+NO_ANSWER = "(no answer)"
+ANSWERED = "(answered)"
+
 
 class Unsupported(Exception):
     """A condition the cross-version encoding cannot express (the message says which)."""
@@ -85,11 +88,17 @@ class Universe:
     def allow(self, var_name: str, condition: Any) -> None:
         self.allowed.setdefault(var_name, []).append(condition)
 
-    def constraints(self) -> list[Any]:
-        out = list(self.domain)
-        out += [z3.Or(conds) for conds in self.allowed.values()]
+    def mark(self) -> tuple[int, set[str], set[str]]:
+        multis = {k for k, kinds in self.kinds.items() if "multi" in kinds}
+        return len(self.domain), set(self.allowed), {f"{k}:{len(self.labels.get(k, {}))}" for k in multis}
+
+    def constraints(self, since: tuple[int, set[str], set[str]] = (0, set(), set())) -> list[Any]:
+        """The domain constraints not yet handed out (`since`: an earlier `mark()`)."""
+        done, allowed_done, multi_done = since
+        out = list(self.domain[done:])
+        out += [z3.Or(conds) for name, conds in self.allowed.items() if name not in allowed_done]
         for key, kinds in self.kinds.items():
-            if "multi" in kinds:
+            if "multi" in kinds and f"{key}:{len(self.labels.get(key, {}))}" not in multi_done:
                 chosen = [self.chosen(key, lb) for lb in self.labels.get(key, {})]
                 out.append(self.gives(key) == z3.Or(chosen or [z3.BoolVal(False)]))
         return out
@@ -248,7 +257,7 @@ class VersionEncoding:
             return self._code(left, rt), rt
         return self.term(left), self.term(right)
 
-    def expr(self, e: Any) -> B | T:  # noqa: C901 - one case per node kind
+    def expr(self, e: Any) -> B | T:
         if isinstance(e, n.Not):
             inner = self.cond(e.operand)
             return B(inner.f, inner.t)
@@ -361,7 +370,21 @@ class CrossVersion:
         self.u = Universe()
         self.old = VersionEncoding(old, self.u, {})
         self.new = VersionEncoding(new, self.u, new_to_old)
-        self.names = {k: k for k in old.symbols} | {new_to_old.get(k, k): k for k in new.symbols}
+        self._s: z3.Solver | None = None
+        self._added: tuple[int, set[str], set[str]] = (0, set(), set())
+        # Witnesses name an item as the new version does.
+        self.display = {was: now for now, was in new_to_old.items()}
+
+    def _solver(self, timeout_ms: int) -> z3.Solver:
+        # One solver holds the respondent's domain; each comparison is a push/pop on it.
+        # Encoding items may add variables, so their domains are added as they appear.
+        if self._s is None:
+            self._s = z3.Solver()
+            self._s.set("timeout", timeout_ms)
+        fresh = self.u.constraints(since=self._added)
+        self._s.add(fresh)
+        self._added = self.u.mark()
+        return self._s
 
     def compare(self, old_name: str, new_name: str, timeout_ms: int = 20000) -> RoutingResult:
         try:
@@ -369,17 +392,20 @@ class CrossVersion:
             a_new = self.new.asked_name(new_name)
         except Unsupported as err:
             return RoutingResult(same=False, error=str(err))
-        solver = z3.Solver()
-        solver.set("timeout", timeout_ms)
-        solver.add(self.u.constraints())
+        solver = self._solver(timeout_ms)
         differ = z3.Xor(a_old, a_new)
-        solver.add(differ)
-        verdict = solver.check()
+        solver.push()
+        try:
+            solver.add(differ)
+            verdict = solver.check()
+            model = solver.model() if verdict == z3.sat else None
+        finally:
+            solver.pop()
         if verdict == z3.unsat:
             return RoutingResult(same=True)
         if verdict == z3.unknown:
             return RoutingResult(same=False, error="the solver gave up (timeout)")
-        model = solver.model()
+        assert model is not None
         return RoutingResult(
             same=False,
             witness=self._witness(model, _constants(differ)),
@@ -391,24 +417,26 @@ class CrossVersion:
         keys = sorted({name.split("#")[0] for name in names})
         out: dict[str, str] = {}
         for key in keys:
+            shown = self.display.get(key, key)
+
             def val(name: str, sort: str) -> Any:
                 return model.eval(self.u.var(name, sort), model_completion=True)
 
             gives = z3.is_true(val(f"{key}#gives", "bool"))
             kinds = self.u.kinds.get(key, set())
             if not gives:
-                out[key] = "(no answer)"
+                out[shown] = NO_ANSWER
             elif "multi" in kinds:
                 chosen = [lb for lb in self.u.labels.get(key, {}) if z3.is_true(val(f"{key}#opt#{lb}", "bool"))]
-                out[key] = ", ".join(chosen) if chosen else "(none)"
+                out[shown] = ", ".join(chosen)
             elif "single" in kinds:
                 ident = val(f"{key}#single", "int").as_long()
                 names_by_id = {i: lb for lb, i in self.u.labels.get(key, {}).items()}
-                out[key] = names_by_id.get(ident, str(ident))
+                out[shown] = names_by_id.get(ident, str(ident))
             elif "number" in kinds:
-                out[key] = str(val(f"{key}#number", "int").as_long())
+                out[shown] = str(val(f"{key}#number", "int").as_long())
             elif "decimal" in kinds:
-                out[key] = val(f"{key}#decimal", "real").as_decimal(6).rstrip("?")
+                out[shown] = val(f"{key}#decimal", "real").as_decimal(6).rstrip("?")
             else:
-                out[key] = "(answered)"
+                out[shown] = ANSWERED
         return out
