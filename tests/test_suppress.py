@@ -48,3 +48,16 @@ def test_hash_inside_a_string_is_not_a_comment() -> None:
 def test_suppressions_cannot_hide_themselves() -> None:
     text = 'a: single yesno "A?"   # lc: allow bad-suppression -- no\n'
     assert _checks(text) == [("bad-suppression", 7)]
+
+
+def test_covers_the_statement_with_its_clauses_only() -> None:
+    text = (
+        'a: single yesno "A?"\n'
+        "# lc: allow unknown-code -- the rule is finished in wave 2\n"
+        'check c1 "C"\n'
+        "  when a = yes\n"
+        "  require a = maybe\n"
+        'check c2 "C"\n'
+        "  require a = perhaps\n"
+    )
+    assert _checks(text) == [("unknown-code", 13)]

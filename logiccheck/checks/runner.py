@@ -13,6 +13,16 @@ from logiccheck.load import Loaded
 STAGE_ORDER = ("spec", "routing")
 
 
+def statement_lines(loaded: Loaded) -> dict[int, int]:
+    """First line -> last line of each statement (its span ends on the next line)."""
+    out: dict[int, int] = {}
+    for entry in loaded.questionnaire.entries:
+        span = entry.stmt.span
+        end = span.end_line if span.end_line is not None else span.line
+        out[span.line] = max(span.line, end - 1)
+    return out
+
+
 def run_checks(
     loaded: Loaded,
     *,
@@ -44,7 +54,10 @@ def run_checks(
                     )
                 )
     ran = {n for n, c in checks.items() if c.stage in stages and n not in disabled}
-    out = apply_suppressions(out, loaded.questionnaire.text, loaded.questionnaire.file, ran=ran, known=checks)
+    out = apply_suppressions(
+        out, loaded.questionnaire.text, loaded.questionnaire.file, ran=ran, known=checks,
+        statements=statement_lines(loaded),
+    )
     result = []
     for diag in out:
         if diag.check in disabled:

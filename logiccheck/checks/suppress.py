@@ -5,8 +5,9 @@
     praise: text "..." when frequent
     # lc: allow-file route-length -- screening-only pilot
 
-A line form on a statement's line, or alone on the line(s) above it, covers that
-statement's line; `allow-file` covers the whole file. Each names one or more checks
+A line form on a statement's first line, or alone on the line(s) above it, covers that
+statement (with its indented `when`/`require` lines); on a continuation line it covers
+that line; `allow-file` covers the whole file. Each names one or more checks
 (comma-separated) and must give a reason after `--`. Comments are not in the parse tree,
 so the source text is scanned here.
 """
@@ -165,13 +166,23 @@ def apply_suppressions(
     *,
     ran: Iterable[str],
     known: Iterable[str] | None = None,
+    statements: dict[int, int] | None = None,
 ) -> list[Diagnostic]:
     """Drop suppressed diagnostics of `file`; add bad and unused suppressions.
 
     `ran` is the set of checks that ran: a suppression of a check that was turned off or
-    skipped (`--no-solver`) cannot be judged unused.
+    skipped (`--no-solver`) cannot be judged unused. `statements` maps a statement's
+    first line to its last (its `when`/`require` lines), so a line suppression covers
+    the whole statement.
     """
     found = scan(text, file, known)
+    last = statements or {}
+
+    def covers(sup: Suppression, line: int) -> bool:
+        if sup.target_line is None:
+            return True
+        return sup.target_line <= line <= last.get(sup.target_line, sup.target_line)
+
     ran_set = set(ran)
     kept: list[Diagnostic] = []
     for diag in diagnostics:
@@ -179,7 +190,7 @@ def apply_suppressions(
         if diag.file == file:
             # A line suppression is the more specific one, so it is used first.
             for sup in sorted(found.suppressions, key=lambda s: s.target_line is None):
-                if sup.check == diag.check and sup.target_line in (None, diag.line):
+                if sup.check == diag.check and covers(sup, diag.line):
                     hit = sup
                     break
         if hit is None:
