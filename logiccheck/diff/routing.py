@@ -1,355 +1,34 @@
 """Who is asked each item, in two versions of a spec, over one shared respondent.
 
-A respondent is the answers they would give if asked: for every item a "would answer"
-flag and a value, shared by both versions. Each version then decides, with the
-three-valued semantics of DESIGN §3 and DEVELOPERS.md, which items are asked, and an item
-that is not asked has no value there. Two versions route an item alike when no
-respondent is asked it in one and not in the other; the solver proves that, or gives
-such a respondent.
+Both versions are encoded by `logic.Encoding` (tags `@old` and `@new`: routing
+variables apart). A respondent is the answers they would give if asked, shared by both:
 
-Codes are matched across versions by label, not value: a recode (the same answer stored
-under another number) does not change who is asked; the recode itself is reported
-separately. Ordering comparisons use each version's own code values.
+* the new version's value variables are renamed apart, then linked to the old ones item
+  by item (a renamed item to its old name). Codes are linked **by label**: a recode (the
+  same answer stored under another number) does not change who is asked, and is reported
+  separately; ordering comparisons still use each version's own values.
+* the respondent's answer space is the union of both versions' (an option or range only
+  one version has is still a possible answer), so the domain constraints of linked items
+  are replaced by their union.
+* an item asked in both versions is answered in both or in neither.
+
+Two versions route an item alike when no respondent is asked it in one and not in the
+other; the solver proves that, or gives such a respondent.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import Any
 
 import z3
 
+from logiccheck.logic import Encoding, EncodingError
 from logiccheck.model import nodes as n
 from logiccheck.model.questionnaire import Entry, Questionnaire
 
 NO_ANSWER = "(no answer)"
 ANSWERED = "(answered)"
-
-
-class Unsupported(Exception):
-    """A condition the cross-version encoding cannot express (the message says which)."""
-
-
-@dataclass
-class B:
-    """A three-valued condition: `t` when true, `f` when false (neither: unknown)."""
-
-    t: Any
-    f: Any
-
-
-@dataclass
-class T:
-    """A value: `known` when it has one, `val` (label id for codes), `nr` for a
-    non-response code, `num` for arithmetic and ordering (code value for codes)."""
-
-    known: Any
-    val: Any
-    nr: Any
-    num: Any
-    coded_key: str | None = None
-
-
-def _real(x: Any) -> Any:
-    return z3.ToReal(x) if z3.is_int(x) else x
-
-
-@dataclass
-class Universe:
-    """The shared respondent: variables per item key, their domains, label ids."""
-
-    labels: dict[str, dict[str, int]] = field(default_factory=dict)
-    domain: list[Any] = field(default_factory=list)
-    kinds: dict[str, set[str]] = field(default_factory=dict)
-    # Per variable, the values either version allows: the domain is their union.
-    allowed: dict[str, list[Any]] = field(default_factory=dict)
-    _vars: dict[str, Any] = field(default_factory=dict)
-
-    def var(self, name: str, sort: str) -> Any:
-        if name not in self._vars:
-            make = {"bool": z3.Bool, "int": z3.Int, "real": z3.Real}[sort]
-            self._vars[name] = make(name)
-        return self._vars[name]
-
-    def gives(self, key: str) -> Any:
-        return self.var(f"{key}#gives", "bool")
-
-    def label_id(self, key: str, label: str) -> int:
-        table = self.labels.setdefault(key, {})
-        if label not in table:
-            table[label] = len(table)
-        return table[label]
-
-    def value(self, key: str, kind: str) -> Any:
-        self.kinds.setdefault(key, set()).add(kind)
-        sort = {"single": "int", "number": "int", "decimal": "real"}[kind]
-        return self.var(f"{key}#{kind}", sort)
-
-    def allow(self, var_name: str, condition: Any) -> None:
-        self.allowed.setdefault(var_name, []).append(condition)
-
-    def mark(self) -> tuple[int, set[str], set[str]]:
-        multis = {k for k, kinds in self.kinds.items() if "multi" in kinds}
-        return len(self.domain), set(self.allowed), {f"{k}:{len(self.labels.get(k, {}))}" for k in multis}
-
-    def constraints(self, since: tuple[int, set[str], set[str]] = (0, set(), set())) -> list[Any]:
-        """The domain constraints not yet handed out (`since`: an earlier `mark()`)."""
-        done, allowed_done, multi_done = since
-        out = list(self.domain[done:])
-        out += [z3.Or(conds) for name, conds in self.allowed.items() if name not in allowed_done]
-        for key, kinds in self.kinds.items():
-            if "multi" in kinds and f"{key}:{len(self.labels.get(key, {}))}" not in multi_done:
-                chosen = [self.chosen(key, lb) for lb in self.labels.get(key, {})]
-                out.append(self.gives(key) == z3.Or(chosen or [z3.BoolVal(False)]))
-        return out
-
-    def chosen(self, key: str, label: str) -> Any:
-        self.kinds.setdefault(key, set()).add("multi")
-        self.label_id(key, label)
-        return self.var(f"{key}#opt#{label}", "bool")
-
-
-class VersionEncoding:
-    """One version's routing over the shared respondent."""
-
-    def __init__(self, q: Questionnaire, universe: Universe, key_of: dict[str, str]) -> None:
-        self.q = q
-        self.u = universe
-        self.key_of = key_of  # this version's name -> shared key
-        self.nr_values = [o.value for o in q.nonresponse]
-        self.nr_labels = [o.label for o in q.nonresponse]
-        self._asked: dict[int, Any] = {}
-        self._fired: dict[int, Any] = {}
-        self._lets: dict[str, B | T] = {}
-        self._declare_domains()
-
-    # ----------------------------------------------------------- the respondent
-    def key(self, name: str) -> str:
-        return self.key_of.get(name, name)
-
-    def _declare_domains(self) -> None:
-        for entry in self.q.entries:
-            stmt = entry.stmt
-            if entry.kind not in ("item", "sample"):
-                continue
-            key = self.key(stmt.name)
-            kind = stmt.type.kind
-            nr_ok = self.q.allows_nonresponse(stmt)
-            if entry.kind == "sample":
-                self.u.domain.append(self.u.gives(key))
-            if kind == "single":
-                codes = self.q.item_codes(stmt)
-                labels = [o.label for o in codes.options] if codes else []
-                if nr_ok:
-                    labels += self.nr_labels
-                val = self.u.value(key, "single")
-                self.u.allow(f"{key}#single", z3.Or([val == self.u.label_id(key, lb) for lb in labels] or [z3.BoolVal(False)]))
-            elif kind in ("number", "decimal"):
-                val = self.u.value(key, kind)
-                lo, hi = stmt.type.lo, stmt.type.hi
-                options = [z3.And(val >= lo, val <= hi)] if lo is not None and hi is not None else [z3.BoolVal(True)]
-                if nr_ok:
-                    options += [val == v for v in self.nr_values]
-                self.u.allow(f"{key}#{kind}", z3.Or(options))
-            elif kind == "multi":
-                codes = self.q.item_codes(stmt)
-                for o in codes.options if codes else []:
-                    self.u.chosen(key, o.label)
-            if entry.kind == "item" and stmt.flags.required:
-                self.u.domain.append(z3.Implies(self.asked(entry), self.u.gives(key)))
-
-    def present(self, name: str) -> Any:
-        entry = self.q.symbols.get(name)
-        if entry is None:
-            raise Unsupported(f"`{name}` is not defined")
-        if entry.kind == "sample":
-            return z3.BoolVal(True)
-        if entry.kind == "let":
-            value = self.let_value(entry)
-            return value.known if isinstance(value, T) else z3.Or(value.t, value.f)
-        return z3.And(self.asked(entry), self.u.gives(self.key(name)))
-
-    # ----------------------------------------------------------- routing
-    def _reached(self, entry: Entry) -> Any:
-        parts = []
-        for expr in entry.conditions():
-            parts.append(self.cond(expr).t)
-        stops, skips = self.q.guards(entry)
-        parts += [z3.Not(self.fired(s)) for s in stops]
-        parts += [z3.Not(self.fired(s)) for s in skips]
-        return z3.And(parts) if parts else z3.BoolVal(True)
-
-    def asked(self, entry: Entry) -> Any:
-        if entry.index not in self._asked:
-            self._asked[entry.index] = z3.BoolVal(True) if entry.kind == "sample" else self._reached(entry)
-        return self._asked[entry.index]
-
-    def fired(self, entry: Entry) -> Any:
-        # A stop or skip fires when reached; `_reached` already includes its condition.
-        if entry.index not in self._fired:
-            self._fired[entry.index] = self._reached(entry)
-        return self._fired[entry.index]
-
-    def asked_name(self, name: str) -> Any:
-        return self.asked(self.q.symbols[name])
-
-    # ----------------------------------------------------------- expressions
-    def let_value(self, entry: Entry) -> B | T:
-        if entry.name not in self._lets:
-            self._lets[entry.name] = self.expr(entry.own)
-        return self._lets[entry.name]
-
-    def cond(self, expr: Any) -> B:
-        value = self.expr(expr)
-        if isinstance(value, B):
-            return value
-        raise Unsupported("a value is used where a condition is expected")
-
-    def term(self, expr: Any) -> T:
-        value = self.expr(expr)
-        if isinstance(value, T):
-            return value
-        # A condition read as a number (rare): true = 1, false = 0.
-        return T(z3.Or(value.t, value.f), z3.If(value.t, 1, 0), z3.BoolVal(False), z3.If(value.t, 1, 0))
-
-    def _ref(self, name: str) -> B | T:
-        entry = self.q.symbols.get(name)
-        if entry is None:
-            raise Unsupported(f"`{name}` is not defined")
-        if entry.kind == "let":
-            return self.let_value(entry)
-        stmt = entry.stmt
-        key = self.key(name)
-        kind = stmt.type.kind
-        known = self.present(name)
-        if kind == "single":
-            val = self.u.value(key, "single")
-            codes = self.q.item_codes(stmt)
-            nr_ids = [self.u.label_id(key, lb) for lb in self.nr_labels] if self.q.allows_nonresponse(stmt) else []
-            num: Any = z3.IntVal(-1)
-            pairs = [(o.label, o.value) for o in (codes.options if codes else [])]
-            if self.q.allows_nonresponse(stmt):
-                pairs += [(o.label, o.value) for o in self.q.nonresponse]
-            for label, value in pairs:
-                num = z3.If(val == self.u.label_id(key, label), value, num)
-            nr = z3.Or([val == i for i in nr_ids]) if nr_ids else z3.BoolVal(False)
-            return T(known, val, nr, num, coded_key=key)
-        if kind in ("number", "decimal"):
-            val = self.u.value(key, kind)
-            nr_vals = self.nr_values if self.q.allows_nonresponse(stmt) else []
-            nr = z3.Or([val == v for v in nr_vals]) if nr_vals else z3.BoolVal(False)
-            return T(known, val, nr, val)
-        raise Unsupported(f"`{name}` ({kind}) cannot be compared")
-
-    def _code(self, node: n.Code, subject: T) -> T:
-        if subject.coded_key is None:
-            return T(z3.BoolVal(True), z3.IntVal(node.value), z3.BoolVal(False), z3.IntVal(node.value))
-        ident = self.u.label_id(subject.coded_key, node.label)
-        nr = z3.BoolVal(node.label in self.nr_labels)
-        return T(z3.BoolVal(True), z3.IntVal(ident), nr, z3.IntVal(node.value))
-
-    def _pair(self, left: Any, right: Any) -> tuple[T, T]:
-        if isinstance(right, n.Code) and not isinstance(left, n.Code):
-            lt = self.term(left)
-            return lt, self._code(right, lt)
-        if isinstance(left, n.Code) and not isinstance(right, n.Code):
-            rt = self.term(right)
-            return self._code(left, rt), rt
-        return self.term(left), self.term(right)
-
-    def expr(self, e: Any) -> B | T:
-        if isinstance(e, n.Not):
-            inner = self.cond(e.operand)
-            return B(inner.f, inner.t)
-        if isinstance(e, n.And):
-            parts = [self.cond(o) for o in e.operands]
-            return B(z3.And([p.t for p in parts]), z3.Or([p.f for p in parts]))
-        if isinstance(e, n.Or):
-            parts = [self.cond(o) for o in e.operands]
-            return B(z3.Or([p.t for p in parts]), z3.And([p.f for p in parts]))
-        if isinstance(e, n.Ref):
-            return self._ref(e.name)
-        if isinstance(e, n.Num):
-            v = z3.IntVal(int(e.value)) if e.is_int else z3.RealVal(e.value)
-            return T(z3.BoolVal(True), v, z3.BoolVal(False), v)
-        if isinstance(e, n.Code):
-            v = z3.IntVal(e.value)
-            return T(z3.BoolVal(True), v, z3.BoolVal(False), v)
-        if isinstance(e, n.Compare):
-            lt, rt = self._pair(e.left, e.right)
-            if e.op in ("=", "!="):
-                known = z3.And(lt.known, rt.known)
-                same = lt.val == rt.val if lt.coded_key or rt.coded_key else _real(lt.num) == _real(rt.num)
-                hit = same if e.op == "=" else z3.Not(same)
-                return B(z3.And(known, hit), z3.And(known, z3.Not(hit)))
-            known = z3.And(lt.known, rt.known, z3.Not(lt.nr), z3.Not(rt.nr))
-            a, b = _real(lt.num), _real(rt.num)
-            hit = {"<": a < b, "<=": a <= b, ">": a > b, ">=": a >= b}[e.op]
-            return B(z3.And(known, hit), z3.And(known, z3.Not(hit)))
-        if isinstance(e, n.InList):
-            subject = self.term(e.subject)
-            knowns, hits = [subject.known], []
-            for v in e.values:
-                st, vt = self._pair(e.subject, v)
-                knowns.append(vt.known)
-                hits.append(st.val == vt.val if st.coded_key else _real(st.num) == _real(vt.num))
-            known, hit = z3.And(knowns), z3.Or(hits or [z3.BoolVal(False)])
-            return B(z3.And(known, hit), z3.And(known, z3.Not(hit)))
-        if isinstance(e, n.InRange):
-            s = self.term(e.subject)
-            known = z3.And(s.known, z3.Not(s.nr))
-            x = _real(s.num)
-            hit = z3.And(x >= e.lo, x <= e.hi)
-            return B(z3.And(known, hit), z3.And(known, z3.Not(hit)))
-        if isinstance(e, n.Has):
-            if not isinstance(e.subject, n.Ref):
-                raise Unsupported("`has` on an expression")
-            key = self.key(e.subject.name)
-            known = self.present(e.subject.name)
-            chosen = [self.u.chosen(key, v.label) for v in e.values if isinstance(v, n.Code)]
-            if len(chosen) != len(e.values):
-                raise Unsupported("`has` with a value that is not a code")
-            hit = z3.And(chosen) if e.mode == "all" else z3.Or(chosen)
-            return B(z3.And(known, hit), z3.And(known, z3.Not(hit)))
-        if isinstance(e, n.Func):
-            entry = self.q.symbols.get(e.name)
-            if entry is None:
-                raise Unsupported(f"`{e.name}` is not defined")
-            if e.func == "asked":
-                a = self.asked(entry) if entry.kind != "let" else z3.BoolVal(True)
-                return B(a, z3.Not(a))
-            if e.func == "answered":
-                p = self.present(e.name)
-                return B(p, z3.Not(p))
-            codes = self.q.item_codes(entry.stmt) if entry.kind in ("item", "sample") else None
-            key = self.key(e.name)
-            total = z3.Sum([z3.If(self.u.chosen(key, o.label), 1, 0) for o in codes.options]) if codes else z3.IntVal(0)
-            return T(self.present(e.name), total, z3.BoolVal(False), total)
-        if isinstance(e, n.Arith):
-            a, b = self.term(e.left), self.term(e.right)
-            known = z3.And(a.known, b.known, z3.Not(a.nr), z3.Not(b.nr))
-            x, y = _real(a.num), _real(b.num)
-            if e.op == "/":
-                known = z3.And(known, y != 0)
-            v = {"+": x + y, "-": x - y, "*": x * y, "/": x / y}[e.op]
-            return T(known, v, z3.BoolVal(False), v)
-        if isinstance(e, n.Neg):
-            a = self.term(e.operand)
-            return T(z3.And(a.known, z3.Not(a.nr)), -_real(a.num), z3.BoolVal(False), -_real(a.num))
-        raise Unsupported(f"cannot encode a `{getattr(e, 'kind', type(e).__name__)}` expression")
-
-
-def _constants(expr: Any) -> set[str]:
-    seen, out, stack = set(), set(), [expr]
-    while stack:
-        node = stack.pop()
-        if node.get_id() in seen:
-            continue
-        seen.add(node.get_id())
-        if z3.is_const(node) and node.decl().kind() == z3.Z3_OP_UNINTERPRETED:
-            out.add(node.decl().name())
-        stack.extend(node.children())
-    return out
 
 
 @dataclass
@@ -363,80 +42,259 @@ class RoutingResult:
     error: str | None = None
 
 
+def _valued(q: Questionnaire) -> dict[str, Entry]:
+    """Items and sample variables that hold a value, by name (first definition)."""
+    out: dict[str, Entry] = {}
+    for e in q.entries:
+        if e.kind in ("item", "sample") and e.stmt.type.kind != "note" and q.symbols.get(e.name) is e:
+            out[e.name] = e
+    return out
+
+
+def _labels(q: Questionnaire, e: Entry) -> dict[str, int]:
+    codes = q.item_codes(e.stmt)
+    out = {o.label: o.value for o in (codes.options if codes else [])}
+    if e.kind == "item" and q.allows_nonresponse(e.stmt):
+        out.update({o.label: o.value for o in q.nonresponse})
+    return out
+
+
+def _refs(expr: Any) -> set[str]:
+    names = set()
+    for node in n.walk(expr):
+        if isinstance(node, (n.Ref, n.Func)):
+            names.add(node.name)
+    return names
+
+
+def support(q: Questionnaire, name: str) -> set[str]:
+    """Every name whose value or routing can decide whether `name` is asked."""
+    seen: set[str] = set()
+    todo = [name]
+    while todo:
+        current = todo.pop()
+        entry = q.symbols.get(current)
+        if entry is None or current in seen:
+            continue
+        seen.add(current)
+        exprs = list(entry.conditions()) if entry.kind != "let" else [entry.own]
+        stops, skips = q.guards(entry)
+        for guard in (*stops, *skips):
+            exprs.extend(guard.conditions())
+        for expr in exprs:
+            todo.extend(_refs(expr) - seen)
+    return seen
+
+
 class CrossVersion:
     """Both versions over one respondent; `compare(old_name, new_name)` per item."""
 
     def __init__(self, old: Questionnaire, new: Questionnaire, new_to_old: dict[str, str]) -> None:
-        self.u = Universe()
-        self.old = VersionEncoding(old, self.u, {})
-        self.new = VersionEncoding(new, self.u, new_to_old)
-        self._s: z3.Solver | None = None
-        self._added: tuple[int, set[str], set[str]] = (0, set(), set())
-        # Witnesses name an item as the new version does.
-        self.display = {was: now for now, was in new_to_old.items()}
+        self.q_old, self.q_new = old, new
+        self.enc_old = Encoding(old, tag="@old")
+        self.enc_new = Encoding(new, tag="@new")
+        self.new_to_old = new_to_old
+        self.old_to_new = {was: now for now, was in new_to_old.items()}
+        self._subst: list[tuple[Any, Any]] = []
+        self._renamed_vars: dict[str, Any] = {}
+        self._label_vars: dict[str, tuple[Any, list[str]]] = {}
+        self._build()
+        self._solver: z3.Solver | None = None
 
-    def _solver(self, timeout_ms: int) -> z3.Solver:
-        # One solver holds the respondent's domain; each comparison is a push/pop on it.
-        # Encoding items may add variables, so their domains are added as they appear.
-        if self._s is None:
-            self._s = z3.Solver()
-            self._s.set("timeout", timeout_ms)
-        fresh = self.u.constraints(since=self._added)
-        self._s.add(fresh)
-        self._added = self.u.mark()
-        return self._s
+    # ------------------------------------------------------------ the shared respondent
+    def _apart(self, var: Any) -> Any:
+        """The new version's copy of a value variable."""
+        key = var.decl().name()
+        if key not in self._renamed_vars:
+            fresh = z3.Const(f"{key}@new", var.sort())
+            self._renamed_vars[key] = fresh
+            self._subst.append((var, fresh))
+        return self._renamed_vars[key]
+
+    def _build(self) -> None:
+        old_vals, new_vals = _valued(self.q_old), _valued(self.q_new)
+        # Rename every value and option variable of the new version apart.
+        for name, e in new_vals.items():
+            kind = e.stmt.type.kind
+            if kind in ("single", "number", "decimal"):
+                self._apart(self.enc_new.value(name))
+            elif kind == "multi":
+                for value in _labels(self.q_new, e).values():
+                    self._apart(self.enc_new.option(name, value))
+        linked_old: set[int] = set()
+        linked_new: set[int] = set()
+        links: list[Any] = []
+        for new_name, ne in new_vals.items():
+            old_name = self.new_to_old.get(new_name, new_name)
+            oe = old_vals.get(old_name)
+            if oe is None or oe.stmt.type.kind != ne.stmt.type.kind or oe.kind != ne.kind:
+                continue  # nothing to link: a new item, or a type change
+            kind = ne.stmt.type.kind
+            if kind == "text":
+                pass
+            elif kind == "multi":
+                lo, ln = _labels(self.q_old, oe), _labels(self.q_new, ne)
+                for label in set(lo) & set(ln):
+                    links.append(self.enc_old.option(old_name, lo[label]) == self.new_var_option(new_name, ln[label]))
+            elif kind == "single":
+                lo, ln = _labels(self.q_old, oe), _labels(self.q_new, ne)
+                labels = list(dict.fromkeys([*lo, *ln]))
+                choice = z3.Int(f"label:{old_name}")
+                self._label_vars[old_name] = (choice, labels)
+                links.append(z3.And(choice >= 0, choice < len(labels)))
+                for table, var in ((lo, self.enc_old.value(old_name)), (ln, self.new_var_value(new_name))):
+                    # A label this version lacks maps to a value it does not use.
+                    spare = min([*table.values(), 0]) - 1
+                    expr: Any = z3.IntVal(spare)
+                    for i, label in enumerate(labels):
+                        expr = z3.If(choice == i, table.get(label, spare), expr)
+                    links.append(var == expr)
+                linked_old.add(oe.index)
+                linked_new.add(ne.index)
+            else:
+                links.append(self.enc_old.value(old_name) == self.new_var_value(new_name))
+                linked_old.add(oe.index)
+                linked_new.add(ne.index)
+            if ne.kind == "item":
+                ask_o, ask_n = self.enc_old.asked(old_name), self.enc_new.asked(new_name)
+                ans_o, ans_n = self.enc_old.answered(old_name), self.enc_new.answered(new_name)
+                links.append(z3.Implies(z3.And(ask_o, ask_n), ans_o == ans_n))
+        facts: list[Any] = []
+        new_formulas = self._all_to_new([c.formula for c in self.enc_new.conjuncts])
+        domains_old = {c.entry: c.formula for c in self.enc_old.conjuncts if c.kind == "domain"}
+        domains_new = {c.entry: f for c, f in zip(self.enc_new.conjuncts, new_formulas, strict=True) if c.kind == "domain"}
+        for c in self.enc_old.conjuncts:
+            if not (c.kind == "domain" and c.entry in linked_old):
+                facts.append(c.formula)
+        for c, formula in zip(self.enc_new.conjuncts, new_formulas, strict=True):
+            if not (c.kind == "domain" and c.entry in linked_new):
+                facts.append(formula)
+        # Linked numbers: the union of both ranges (singles are bounded by their label).
+        for new_name, ne in new_vals.items():
+            old_name = self.new_to_old.get(new_name, new_name)
+            oe = old_vals.get(old_name)
+            if oe is None or ne.index not in linked_new or ne.stmt.type.kind == "single":
+                continue
+            parts = [d for d in (domains_old.get(oe.index), domains_new.get(ne.index)) if d is not None]
+            if parts:
+                facts.append(z3.Or(parts))
+        self.facts = facts + links
+
+    def new_var_value(self, name: str) -> Any:
+        return self._apart(self.enc_new.value(name))
+
+    def new_var_option(self, name: str, value: int) -> Any:
+        return self._apart(self.enc_new.option(name, value))
+
+    def _all_to_new(self, formulas: list[Any]) -> list[Any]:
+        # One substitution over all of them: z3's Python layer checks every pair per call.
+        if not self._subst or not formulas:
+            return list(formulas)
+        marks = [z3.Bool(f"__part{i}") for i in range(len(formulas))]
+        bundle = z3.And([m == f for m, f in zip(marks, formulas, strict=True)])
+        done = z3.substitute(bundle, *self._subst)
+        parts = done.children() if z3.is_and(done) else [done]
+        assert len(parts) == len(formulas)
+        return [p.arg(1) for p in parts]
+
+    # ------------------------------------------------------------ queries
+    def _get_solver(self, timeout_ms: int) -> z3.Solver:
+        if self._solver is None:
+            self._solver = z3.Solver()
+            self._solver.set("timeout", timeout_ms)
+            self._solver.add(*self.facts)
+        return self._solver
+
+    def _opaque(self, q: Questionnaire, enc: Encoding, name: str) -> str | None:
+        for dep in support(q, name):
+            entry = q.symbols.get(dep)
+            if entry is not None and entry.index in enc.unencodable:
+                return f"the conditions of `{dep}` cannot be read"
+        guards = q.guards(q.symbols[name])
+        if any(g.index in enc.unencodable for g in (*guards[0], *guards[1])):
+            return "an earlier stop or skip cannot be read"
+        return None
 
     def compare(self, old_name: str, new_name: str, timeout_ms: int = 20000) -> RoutingResult:
+        why = self._opaque(self.q_old, self.enc_old, old_name) or self._opaque(self.q_new, self.enc_new, new_name)
+        if why is not None:
+            return RoutingResult(same=False, error=why)
         try:
-            a_old = self.old.asked_name(old_name)
-            a_new = self.new.asked_name(new_name)
-        except Unsupported as err:
+            a_old = self.enc_old.asked(old_name)
+            a_new = self.enc_new.asked(new_name)
+        except (EncodingError, KeyError) as err:
             return RoutingResult(same=False, error=str(err))
-        solver = self._solver(timeout_ms)
-        differ = z3.Xor(a_old, a_new)
+        solver = self._get_solver(timeout_ms)
         solver.push()
         try:
-            solver.add(differ)
+            solver.add(z3.Xor(a_old, a_new))
             verdict = solver.check()
             model = solver.model() if verdict == z3.sat else None
         finally:
             solver.pop()
         if verdict == z3.unsat:
             return RoutingResult(same=True)
-        if verdict == z3.unknown:
+        if model is None:
             return RoutingResult(same=False, error="the solver gave up (timeout)")
-        assert model is not None
+        names = support(self.q_old, old_name) | {
+            self.new_to_old.get(x, x) for x in support(self.q_new, new_name)
+        }
+        names.discard(old_name)
         return RoutingResult(
             same=False,
-            witness=self._witness(model, _constants(differ)),
+            witness=self._witness(model, names),
             asked_old=z3.is_true(model.eval(a_old, model_completion=True)),
             asked_new=z3.is_true(model.eval(a_new, model_completion=True)),
         )
 
-    def _witness(self, model: z3.ModelRef, names: set[str]) -> dict[str, str]:
-        keys = sorted({name.split("#")[0] for name in names})
+    # ------------------------------------------------------------ witnesses
+    def _witness(self, model: z3.ModelRef, old_names: set[str]) -> dict[str, str]:
+        """The answers the respondent would give, named as the new version names them;
+        items asked in neither version are left out (their answers cannot matter)."""
+        def ev(x: Any) -> Any:
+            return model.eval(x, model_completion=True)
+
+        old_vals, new_vals = _valued(self.q_old), _valued(self.q_new)
+        order = [e.name for e in self.q_new.entries] + [e.name for e in self.q_old.entries]
         out: dict[str, str] = {}
-        for key in keys:
-            shown = self.display.get(key, key)
-
-            def val(name: str, sort: str) -> Any:
-                return model.eval(self.u.var(name, sort), model_completion=True)
-
-            gives = z3.is_true(val(f"{key}#gives", "bool"))
-            kinds = self.u.kinds.get(key, set())
-            if not gives:
-                out[shown] = NO_ANSWER
-            elif "multi" in kinds:
-                chosen = [lb for lb in self.u.labels.get(key, {}) if z3.is_true(val(f"{key}#opt#{lb}", "bool"))]
-                out[shown] = ", ".join(chosen)
-            elif "single" in kinds:
-                ident = val(f"{key}#single", "int").as_long()
-                names_by_id = {i: lb for lb, i in self.u.labels.get(key, {}).items()}
-                out[shown] = names_by_id.get(ident, str(ident))
-            elif "number" in kinds:
-                out[shown] = str(val(f"{key}#number", "int").as_long())
-            elif "decimal" in kinds:
-                out[shown] = val(f"{key}#decimal", "real").as_decimal(6).rstrip("?")
+        for key in sorted(old_names, key=lambda k: order.index(self.old_to_new.get(k, k)) if self.old_to_new.get(k, k) in order else 0):
+            new_name = self.old_to_new.get(key, key)
+            oe, ne = old_vals.get(key), new_vals.get(new_name)
+            # Read the answer from a version that asks the item (or a sample variable).
+            sides = []
+            if oe is not None:
+                asked = z3.BoolVal(True) if oe.kind == "sample" else self.enc_old.asked(key)
+                sides.append(("old", oe, asked, self.enc_old.answered(key)))
+            if ne is not None:
+                asked = z3.BoolVal(True) if ne.kind == "sample" else self.enc_new.asked(new_name)
+                sides.append(("new", ne, asked, self.enc_new.answered(new_name)))
+            side = next((s for s in sides if z3.is_true(ev(s[2]))), None)
+            if side is None:
+                continue
+            which, entry, _asked, answered = side
+            if not z3.is_true(ev(answered)):
+                out[new_name] = NO_ANSWER
+                continue
+            q = self.q_old if which == "old" else self.q_new
+            kind = entry.stmt.type.kind
+            if kind == "text":
+                out[new_name] = ANSWERED
+            elif kind == "multi":
+                table = _labels(q, entry)
+                chosen = [
+                    lb for lb, v in table.items()
+                    if z3.is_true(ev(self.enc_old.option(key, v) if which == "old" else self.new_var_option(new_name, v)))
+                ]
+                out[new_name] = ", ".join(chosen)
             else:
-                out[shown] = ANSWERED
+                var = self.enc_old.value(key) if which == "old" else self.new_var_value(new_name)
+                raw = ev(var)
+                if kind == "single":
+                    number = raw.as_long()
+                    labels = {v: lb for lb, v in _labels(q, entry).items()}
+                    out[new_name] = labels.get(number, str(number))
+                elif z3.is_int_value(raw):
+                    out[new_name] = str(raw.as_long())
+                else:
+                    out[new_name] = raw.as_decimal(6).rstrip("?")
         return out
