@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import json
 import subprocess
 import sys
 from pathlib import Path
@@ -112,3 +113,40 @@ def test_lint_bad_configuration_exits_2(tmp_path: Path) -> None:
     assert str(other) in proc.stderr and "did you mean `unknown-name`" in proc.stderr
     proc = _lint(str(spec), "--config", str(tmp_path / "missing.toml"), cwd=tmp_path)
     assert proc.returncode == 2 and "no such configuration file" in proc.stderr
+
+
+def test_data_table_is_validated_with_the_mapping_model() -> None:
+    # The [data] table goes through the data mapping's own pydantic model.
+    with pytest.raises(ConfigError) as err:
+        parse_config({"data": {"idd": "resp"}}, "proj/logiccheck.toml")
+    assert "proj/logiccheck.toml" in str(err.value) and "`data.idd`" in str(err.value)
+    config = parse_config({"data": {"id": "resp"}}, "proj/logiccheck.toml")
+    assert config.models["data"].id == "resp"
+
+
+def test_validate_reads_the_data_table(tmp_path: Path) -> None:
+    spec = tmp_path / "bikeshare.qlc"
+    spec.write_text((ROOT / "specs" / "bikeshare.qlc").read_text())
+    rows = (ROOT / "specs" / "bikeshare_export.csv").read_text().split("\n")
+    header = rows[0].split(",")
+    assert header[0] == "id"
+    (tmp_path / "export.csv").write_text("\n".join([",".join(["resp_no", *header[1:]]), *rows[1:]]))
+
+    def validate() -> subprocess.CompletedProcess[str]:
+        return subprocess.run(
+            [sys.executable, "-m", "logiccheck", "validate", str(spec), "--data", str(tmp_path / "export.csv"), "--format", "json"],
+            capture_output=True, text=True, cwd=ROOT, check=False,
+        )
+
+    without = validate()
+    (tmp_path / "logiccheck.toml").write_text('[data]\nid = "resp_no"\n')
+    with_config = validate()
+    reference = subprocess.run(
+        [sys.executable, "-m", "logiccheck", "validate", str(ROOT / "specs" / "bikeshare.qlc"), "--data",
+         str(ROOT / "specs" / "bikeshare_export.csv"), "--format", "json"],
+        capture_output=True, text=True, cwd=ROOT, check=False,
+    )
+    assert without.stdout != reference.stdout or without.returncode == 2
+    got, want = json.loads(with_config.stdout), json.loads(reference.stdout)
+    assert got["respondents"] == want["respondents"]
+    assert [f["check"] for f in got["findings"]] == [f["check"] for f in want["findings"]]

@@ -206,3 +206,24 @@ def test_github_snapshot() -> None:
 def test_github_property_with_comma_and_colon() -> None:
     d = Diagnostic(check="unknown-code", severity=Severity.error, span=Span(file="C:/x,y.qlc", line=2, column=5), message="m")
     assert annotation(d) == "::error file=C%3A/x%2Cy.qlc,line=2,col=5,title=unknown-code::m"
+
+
+# ------------------------------------------------------------------ validate findings
+def test_validate_findings_through_the_same_emitters() -> None:
+    spec, data = ROOT / "specs" / "bikeshare.qlc", ROOT / "specs" / "bikeshare_export.csv"
+    base = [sys.executable, "-m", "logiccheck", "validate", str(spec), "--data", str(data)]
+    findings = json.loads(subprocess.run([*base, "--format", "json"], capture_output=True, text=True, cwd=ROOT, check=False).stdout)["findings"]
+    assert findings, "the demo export has planted faults"
+    sarif = json.loads(subprocess.run([*base, "--format", "sarif"], capture_output=True, text=True, cwd=ROOT, check=False).stdout)
+    assert list(_sarif_validator().iter_errors(sarif)) == []
+    results = sarif["runs"][0]["results"]
+    assert len(results) == len(findings)
+    assert [r["ruleId"] for r in results] == [f["check"] for f in findings]
+    first = next(r for r in results if r.get("relatedLocations"))
+    assert first["relatedLocations"][0]["physicalLocation"]["artifactLocation"]["uri"].endswith("bikeshare.qlc")
+    junit = ET.fromstring(subprocess.run([*base, "--format", "junit"], capture_output=True, text=True, cwd=ROOT, check=False).stdout)
+    assert _conforms(junit, _xsd_rules()) == []
+    failing_checks = {f["check"] for f in findings if f["severity"] == "error"}
+    assert junit.get("failures") == str(len(failing_checks))
+    lines = subprocess.run([*base, "--format", "github"], capture_output=True, text=True, cwd=ROOT, check=False).stdout.splitlines()
+    assert len(lines) == len(findings) and all(line.startswith("::") for line in lines)
