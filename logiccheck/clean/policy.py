@@ -69,6 +69,23 @@ def _fmt(err: ValidationError, file: str) -> str:
     return f"{file}: [{where}] {first['msg']}"
 
 
+def configured_policy(spec: str | Path) -> tuple[CleanPolicy, QualityConfig]:
+    """The `[clean]` and `[quality]` tables of the configuration found above the spec
+    (`logiccheck.toml` or `[tool.logiccheck]`); defaults where there is none."""
+    from logiccheck.config import ConfigError, config_for
+
+    try:
+        config = config_for(spec)
+    except ConfigError as err:
+        raise PolicyError(str(err)) from None
+    policy = config.models.get("clean")
+    quality = config.models.get("quality")
+    return (
+        policy if isinstance(policy, CleanPolicy) else CleanPolicy(),
+        quality if isinstance(quality, QualityConfig) else QualityConfig(),
+    )
+
+
 def load_policy(path: str | Path | None) -> tuple[CleanPolicy, QualityConfig]:
     """Read `[clean]` and `[quality]` from a TOML file (or `[tool.logiccheck]` in a
     pyproject.toml). No file: the defaults."""

@@ -8,7 +8,7 @@ from pathlib import Path
 import click
 
 from logiccheck.clean.io import ExportError
-from logiccheck.clean.policy import BIAS_WARNING, PolicyError, load_policy
+from logiccheck.clean.policy import BIAS_WARNING, PolicyError, configured_policy, load_policy
 from logiccheck.clean.run import clean_export
 from logiccheck.cli.common import EXIT_OK, color_option, fail, make_console
 from logiccheck.cli.rates import read_outcomes
@@ -23,7 +23,7 @@ from logiccheck.quality.route import RouteError
 @click.argument("spec", type=click.Path(dir_okay=False))
 @click.option("--data", "data", required=True, type=click.Path(dir_okay=False), help="The export (.csv, .parquet, .xlsx).")
 @click.option("--out", "out", required=True, type=click.Path(file_okay=False), help="Folder for the cleaned export, audit.csv and summary.json.")
-@click.option("--policy", "policy_file", type=click.Path(dir_okay=False), help="TOML with [clean] and [quality] tables.")
+@click.option("--policy", "policy_file", type=click.Path(dir_okay=False), help="TOML with [clean] and [quality] tables [default: those of the logiccheck.toml found above the spec].")
 @click.option("--map", "map_file", type=click.Path(dir_okay=False), help="Data mapping (TOML; keys top-level or under [data]).")
 @click.option("--frame", "frame_file", type=click.Path(dir_okay=False), help="Sample frame CSV (column id, optionally email).")
 @click.option("--sample", "sample_file", type=click.Path(dir_okay=False), help="Final outcome of every sampled case, for the outcome rates.")
@@ -39,7 +39,7 @@ def clean_command(spec: str, data: str, out: str, policy_file: str | None, map_f
         d = loaded.syntax[0]
         fail(f"{d.file}:{d.line}:{d.column}: {d.message}; run `logiccheck lint {spec}` and fix the spec first")
     try:
-        policy, config = load_policy(policy_file)
+        policy, config = load_policy(policy_file) if policy_file else configured_policy(spec)
         outcomes = read_outcomes(Path(sample_file)) if sample_file else None
         mapping = load_mapping(map_file) if map_file else None
         run = clean_export(loaded.questionnaire, Path(data), Path(out), policy, config,

@@ -15,6 +15,7 @@ from logiccheck.data.readers import DEFAULT_CHUNK_ROWS
 from logiccheck.diagnostics import Severity
 from logiccheck.load import Loaded, SpecReadError, load_file
 from logiccheck.quality.attach import attach_quality
+from logiccheck.quality.config import QualityConfig
 from logiccheck.report.data_csv import items_csv, write_csv_dir
 from logiccheck.report.data_json import validation_json
 from logiccheck.report.data_text import render_validation
@@ -50,6 +51,15 @@ def _configured_mapping(spec: str | None) -> DataMapping:
         fail(str(err))
     model = config.models.get("data")
     return model if isinstance(model, DataMapping) else DataMapping()
+
+
+def _configured_quality(loaded: Loaded) -> QualityConfig:
+    from logiccheck.clean.policy import PolicyError, configured_policy
+
+    try:
+        return configured_policy(loaded.questionnaire.file)[1]
+    except PolicyError as err:
+        fail(str(err))
 
 
 def load_data_mapping(map_file: str | None, frame: str | None, spec: str | None = None) -> DataMapping:
@@ -96,7 +106,7 @@ def run_validation(
         result = validate(
             loaded.questionnaire, data, mapping, encoding=encoding, chunk_rows=chunk_rows, keep_cells=False, progress=progress
         )
-        return attach_quality(loaded.questionnaire, result, data, mapping, encoding=encoding)
+        return attach_quality(loaded.questionnaire, result, data, mapping, _configured_quality(loaded), encoding=encoding)
     except DataReadError as err:
         fail(str(err))
     finally:

@@ -240,3 +240,21 @@ def test_mapped_layout_renamed_columns_and_markers(tmp_path: Path) -> None:
     assert run.summary["findings"]["speeder"] == 1
     restored = reverse_audit(read_sheet_csv(tmp_path / "out" / "mapped.cleaned.csv"), read_sheet_csv(tmp_path / "out" / "audit.csv"))
     pd.testing.assert_frame_equal(restored, read_export(path))
+
+
+def test_configuration_file_above_the_spec(tmp_path: Path) -> None:
+    spec, data, fr = setup(tmp_path)
+    (tmp_path / "logiccheck.toml").write_text(
+        '[clean]\nrespondents = { speeder = "drop" }\n[quality.duplicates]\nnear_threshold = 0.99\n'
+    )
+    runner = CliRunner()
+    res = runner.invoke(cli, ["clean", str(spec), "--data", str(data), "--out", str(tmp_path / "o"), "--frame", str(fr)])
+    assert res.exit_code == 0, res.output
+    summary = json.loads((tmp_path / "o" / "summary.json").read_text())
+    assert summary["removed"] == {"speeder": 1} and "near-duplicate" not in summary["findings"]
+    res = runner.invoke(cli, ["validate", str(spec), "--data", str(data), "--format", "json"])
+    checks = {f["check"] for f in json.loads(res.stdout)["findings"]}
+    assert "speeder" in checks and "near-duplicate" not in checks  # the threshold from the file
+    (tmp_path / "logiccheck.toml").write_text("[quality.duplicates]\nnear_treshold = 0.9\n")
+    res = runner.invoke(cli, ["clean", str(spec), "--data", str(data), "--out", str(tmp_path / "o")])
+    assert res.exit_code == 2 and "near_treshold" in res.output
