@@ -79,8 +79,8 @@ def test_broken_toml_is_one_line(tmp_path: Path) -> None:
 
 
 def test_pass_through_tables_are_kept() -> None:
-    config = parse_config({"data": {"id": "resp_id"}, "quality": {"speeder": 0.3}, "clean": {}}, "x.toml")
-    assert config.data == {"id": "resp_id"} and config.quality == {"speeder": 0.3}
+    config = parse_config({"data": {"id": "resp_id"}, "quality": {"speed": {"fraction_of_median": 0.3}}, "clean": {}}, "x.toml")
+    assert config.data == {"id": "resp_id"} and config.quality == {"speed": {"fraction_of_median": 0.3}}
 
 
 def test_off_and_override(tmp_path: Path) -> None:
