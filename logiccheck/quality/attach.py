@@ -59,13 +59,6 @@ def attach_quality(
     sample_frame = None
     if mapping.frame is not None:
         sample_frame = pd.read_csv(mapping.frame, dtype=str, keep_default_na=False)
-    dc = config.duplicates
-    if full.respondents > dc.near_max_respondents:
-        config = config.model_copy(update={"duplicates": dc.model_copy(update={"near_threshold": 2.0})})
-        result.notes.append(
-            f"near-duplicate not checked: {full.respondents} respondents is above "
-            f"[quality.duplicates] near_max_respondents = {dc.near_max_respondents}"
-        )
     try:
         quality = run_quality(q, frame, config, sample_frame, id_column="id" if "id" in frame.columns else mapping.id, state=state)
     except (ValueError, KeyError) as err:

@@ -38,10 +38,13 @@ class DuplicateConfig(_Strict):
     near_basis: Literal["asked", "all"] = "asked"
     # Pairs compared over fewer items than this are not scored (common practice, no source).
     near_min_items: int = Field(10, ge=1)
+    # Exact copies count only among respondents with at least this many answers: short
+    # routes coincide by chance (common practice, no source).
+    exact_min_answered: int = Field(10, ge=1)
     chunk_size: int = Field(2000, ge=1)
-    # Above this many respondents `validate` skips near-duplicates (the cost grows with
-    # the square of the count; `clean` always runs them). 50,000 take well under a minute.
-    near_max_respondents: int = Field(100_000, ge=2)
+    # Above this many respondents near-duplicates are skipped with a note: the cost grows
+    # with the square of the count (50,000 × 100 items take about half a minute on 2 cores).
+    near_max_respondents: int = Field(50_000, ge=2)
 
 
 class CarelessConfig(_Strict):
@@ -101,6 +104,9 @@ SOURCES: dict[str, str] = {
     "completeness.partial_from": "AAPOR Standard Definitions, example threshold (from memory)",
     "duplicates.near_threshold": "Kuriakose & Robbins (2016)",
     "duplicates.near_min_items": "common practice, no source",
+    "duplicates.exact_min_answered": "common practice, no source",
+    "careless.pattern_max_period": "common practice, no source",
+    "completeness.nonresponse_counts_as_answered": "the issue's default: a non-response code is an answer",
     "careless.min_rows": "common practice, no source",
     "careless.straightline_sd": "common practice, no source",
     "careless.longest_run_share": "common practice, no source",

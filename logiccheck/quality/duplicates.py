@@ -30,31 +30,26 @@ def duplicate_ids(ids: Sequence[object]) -> list[Finding]:
 
 def duplicate_responses(ids: Sequence[object], answers: pd.DataFrame, min_answered: int = 3) -> list[Finding]:
     """Respondents whose answers on every substantive item are identical (blanks equal),
-    among those with at least `min_answered` answers."""
-    frame = answers.reset_index(drop=True).astype(object).where(answers.reset_index(drop=True).notna(), None)
-    enough = answers.notna().sum(axis=1).to_numpy() >= min_answered
-    keys = pd.util.hash_pandas_object(frame.astype(str), index=False).to_numpy()
-    out = []
-    groups: dict[int, list[int]] = {}
-    for r in np.flatnonzero(enough):
-        groups.setdefault(int(keys[r]), []).append(int(r))
-    values = frame.astype(str).to_numpy()
-    for key, rows in list(groups.items()):
-        if len(rows) < 2:
-            continue
-        # A hash is not proof: split the group by the rows' actual cells.
-        exact: dict[tuple[str, ...], list[int]] = {}
+    among those with at least `min_answered` answers. `answers` is numeric (NaN = blank)."""
+    values = answers.to_numpy(dtype=float)
+    enough = np.flatnonzero((~np.isnan(values)).sum(axis=1) >= min_answered)
+    out: list[Finding] = []
+    if enough.size < 2:
+        return out
+    # Exact grouping of whole rows; a blank gets a value no answer can have.
+    filled = np.where(np.isnan(values[enough]), -np.inf, values[enough])
+    _, inverse, counts = np.unique(filled, axis=0, return_inverse=True, return_counts=True)
+    inverse = inverse.ravel()
+    sel = np.flatnonzero(counts[inverse] > 1)
+    order = sel[np.argsort(inverse[sel], kind="stable")]
+    for group in np.split(order, np.flatnonzero(np.diff(inverse[order])) + 1) if order.size else []:
+        rows = enough[group].tolist()
+        answered = int((~np.isnan(values[rows[0]])).sum())
         for r in rows:
-            exact.setdefault(tuple(values[r]), []).append(r)
-        del groups[key]
-        for i, sub in enumerate(exact.values()):
-            groups[hash((key, i))] = sub
-    for rows in groups.values():
-        if len(rows) < 2:
-            continue
-        for r in rows:
-            others = ", ".join(str(ids[o]) for o in rows if o != r)
-            out.append(finding("duplicate-response", ids[r], r, f"same answers on all {answers.shape[1]} items as {others}", value=rows[0]))
+            others = [str(ids[o]) for o in rows if o != r]
+            shown = ", ".join(others[:5]) + (f" and {len(others) - 5} more" if len(others) > 5 else "")
+            out.append(finding("duplicate-response", ids[r], r,
+                               f"the same {answered} answers (and the same blanks) as respondent {shown}", value=rows[0]))
     return sorted(out, key=lambda f: f.row)
 
 

@@ -80,11 +80,16 @@ def run_quality(
     notes: list[str] = []
     found += duplicates.duplicate_ids(ids)
     answers, asked = compared_answers(q, state, frame)
-    exact = duplicates.duplicate_responses(ids, answers, min_answered=min(3, max(1, answers.shape[1])))
+    dc = config.duplicates
+    exact = duplicates.duplicate_responses(ids, answers, min_answered=min(dc.exact_min_answered, max(1, answers.shape[1])))
     found += exact
     match = None
-    if answers.shape[1] and len(frame) > 1:
-        dc = config.duplicates
+    if len(frame) > dc.near_max_respondents:
+        notes.append(
+            f"near-duplicate not checked: {len(frame)} respondents is above "
+            f"[quality.duplicates] near_max_respondents = {dc.near_max_respondents} (the cost grows with the square)"
+        )
+    elif answers.shape[1] and len(frame) > 1:
         match = duplicates.max_percent_match(
             answers, asked if dc.near_basis == "asked" else None, basis=dc.near_basis,
             min_items=min(dc.near_min_items, answers.shape[1]), chunk_size=dc.chunk_size,
