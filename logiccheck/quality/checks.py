@@ -21,8 +21,9 @@ describe(
     severity="warning",
     stage="quality",
     summary="Two or more respondents gave identical answers on every substantive item.",
-    what="Respondents (with at least a few answers) whose answers match another respondent's on all "
-    "substantive items, blanks included; each is shown with the respondents it copies.",
+    what="Respondents with at least `[quality.duplicates] exact_min_answered` answers (default 10; common "
+    "practice, no source) whose answers match another respondent's on all substantive items, blanks "
+    "included; each is shown with the respondents it copies.",
     why="An exact copy is rarely chance: a record entered twice, a fabricated interview, or one person "
     "answering twice. Whether to drop it is the study's decision; this check only points at it.",
     bad="id,q1,q2,q3\n11,2,5,1\n12,2,5,1",
