@@ -117,8 +117,10 @@ def clean_export(
         if t.resolve() in protected:
             raise ExportError(f"{t}: would overwrite an input file; choose another --out folder")
 
-    disp_counts = result.disposition_counts()
     stops = [e.name for e in q.entries if e.kind == "stop"]
+    got = result.disposition_counts()
+    # Every disposition listed, zero included, as `validate` reports them.
+    disp_counts = {name: got.pop(name, 0) for name in ("complete", "partial", "break-off", *stops)} | got
     if sample_outcomes is not None:
         counts, basis = sample_outcomes, "sample file"
     else:

@@ -59,7 +59,7 @@ def test_defaults_blank_cells_and_only_flag(tmp_path: Path) -> None:
     assert len(run.outcome.cleaned) == len(read_export(data))  # flag only: nobody removed
     s = run.summary
     assert s["input"]["sha256"] == before[0] and s["version"]
-    assert s["findings"]["speeder"] == 1 and s["dispositions"]["break-off"] == 1
+    assert s["findings"]["speeder"] == 1 and s["dispositions"]["break-off"] == 1 and s["dispositions"]["minor"] == 0
     assert s["thresholds"]["duplicates"]["near_threshold"] == 0.85
     assert s["threshold_sources"]["speed.fraction_of_median"] == "common practice, no source"
     assert s["policy"]["respondents"] == {}
