@@ -51,9 +51,9 @@ def _repair_hints(q: Questionnaire, frame: pd.DataFrame, result: QualityResult, 
 
 def _mapped_quality(
     q: Questionnaire, export: Path, mapping: DataMapping, config: QualityConfig, sf: pd.DataFrame | None
-) -> tuple[QualityResult, set[str]]:
+) -> tuple[QualityResult, set[str], pd.DataFrame]:
     """Route state and quality findings through the data stage's reader and mapping; the
-    state's columns are the export's own names."""
+    state's columns are the export's own names. Also returns the typed frame (spec names)."""
     try:
         full = validate(q, export, mapping)
     except DataReadError as err:
@@ -72,7 +72,7 @@ def _mapped_quality(
         if c in raw.columns and c not in typed.columns:
             typed[c] = raw[c].to_numpy()
     markers = {*mapping.blank_markers(), *(m.strip() for m in mapping.not_shown), *(m.strip() for m in mapping.unanswered)}
-    return run_quality(q, typed, config, sf, id_column="id", state=state), markers
+    return run_quality(q, typed, config, sf, id_column="id", state=state), markers, typed
 
 
 def clean_export(
@@ -94,11 +94,11 @@ def clean_export(
     frame = read_export(export)
     sf = read_export(sample_frame) if sample_frame is not None else None
     if mapping is None:
-        result, markers = run_quality(q, frame, config, sf), {""}
+        result, markers, by_name = run_quality(q, frame, config, sf), {""}, frame
     else:
         if config.speed.duration_column == "duration":
             config = config.model_copy(update={"speed": config.speed.model_copy(update={"duration_column": mapping.duration})})
-        result, markers = _mapped_quality(q, export, mapping, config, sf)
+        result, markers, by_name = _mapped_quality(q, export, mapping, config, sf)
     if policy.keep_dispositions is not None:
         known = {"complete", "partial", "break-off", *(e.name for e in q.entries if e.kind == "stop")}
         unknown = [d for d in policy.keep_dispositions if d not in known]
@@ -141,7 +141,7 @@ def clean_export(
         "thresholds": config.thresholds(),
         "threshold_sources": SOURCES,
         "rates": {"basis": basis, "counts": counts.as_dict(), **outcome_rates(counts)},
-        "repair_hints": _repair_hints(q, frame, result, config),
+        "repair_hints": _repair_hints(q, by_name, result, config),
         "notes": [*result.notes, BIAS_WARNING],
     }
     findings = pd.DataFrame(
