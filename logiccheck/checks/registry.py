@@ -97,7 +97,7 @@ def _load() -> None:
             importlib.import_module(module)
         except ModuleNotFoundError as err:
             # A stage not built yet; any other missing module is a real error.
-            if err.name != module:
+            if err.name is None or not (module == err.name or module.startswith(err.name + ".")):
                 raise
 
 

@@ -6,6 +6,7 @@ import click
 
 from logiccheck import __version__
 from logiccheck.cli.explain import explain_command
+from logiccheck.cli.graph import graph_command
 from logiccheck.cli.lint import lint_command
 
 
@@ -18,6 +19,7 @@ def cli() -> None:
 # One line per command module.
 cli.add_command(lint_command)
 cli.add_command(explain_command)
+cli.add_command(graph_command)
 
 
 def main() -> None:
