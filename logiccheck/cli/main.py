@@ -8,6 +8,7 @@ from logiccheck import __version__
 from logiccheck.cli.explain import explain_command
 from logiccheck.cli.graph import graph_command
 from logiccheck.cli.lint import lint_command
+from logiccheck.cli.report import report_command
 
 
 @click.group(context_settings={"help_option_names": ["-h", "--help"]})
@@ -20,6 +21,7 @@ def cli() -> None:
 cli.add_command(lint_command)
 cli.add_command(explain_command)
 cli.add_command(graph_command)
+cli.add_command(report_command)
 
 
 def main() -> None:

@@ -16,11 +16,22 @@ def write_atomic(path: str | Path, data: bytes | str) -> Path:
     try:
         with os.fdopen(fd, "wb") as handle:
             handle.write(payload)
+        os.chmod(tmp, _file_mode(path))
         os.replace(tmp, path)
     except BaseException:
         Path(tmp).unlink(missing_ok=True)
         raise
     return path
+
+
+def _file_mode(path: Path) -> int:
+    """Keep an existing file's mode; a new file gets the usual mode under the umask."""
+    try:
+        return path.stat().st_mode & 0o777
+    except OSError:
+        mask = os.umask(0)
+        os.umask(mask)
+        return 0o666 & ~mask
 
 
 def numbered_paths(path: str | Path, names: list[str]) -> list[Path]:
