@@ -1,7 +1,7 @@
 """A compact terminal bar for the `validate` table: expected versus answered at a glance.
 
 The bar is `width` cells scaled to the larger of expected and answered: `█` answered on
-path, `░` missing on path, `▓` out of path (red), and `│` where the expected count falls,
+path, `░` missing on path, `▓` out of path (red), and `│` at the end of the expected count when answers fall short of it,
 so a broken route shows as a red tail or a long light gap without reading numbers.
 """
 
@@ -29,8 +29,9 @@ def bar_cells(expected: int, answered: int, out_of_path: int, missing_on_path: i
         sizes[sizes.index(max(sizes))] -= 1
     parts = [ON] * sizes[0] + [MISSING] * sizes[1] + [OUT] * sizes[2]
     parts += [EMPTY] * (width - len(parts))
-    mark = min(cells(expected), width) if expected else None
-    if mark is not None and mark < width and parts[mark] == EMPTY:
+    # The last cell the expected count reaches: an empty one there shows how short answers fall.
+    mark = min(cells(expected), width) - 1
+    if expected and mark >= 0 and parts[mark] == EMPTY:
         parts[mark] = MARK
     return "".join(parts)
 

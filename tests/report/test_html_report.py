@@ -1,0 +1,161 @@
+"""The HTML report: every part present, in order, self-contained, respondent text escaped."""
+
+from __future__ import annotations
+
+from html.parser import HTMLParser
+
+import pytest
+from click.testing import CliRunner
+
+pytest.importorskip("jinja2")
+pytest.importorskip("matplotlib")
+
+from logiccheck.checks.runner import run_checks
+from logiccheck.cli.main import cli
+from logiccheck.load import load_file, load_text
+from logiccheck.report.html import render_fragment, render_html
+from logiccheck.report.report_data import ReportData, from_validation
+from tests.report.fakes import NASTY, fake_result
+
+
+class Page(HTMLParser):
+    """Collects tags, attributes, ids and text with the standard library's HTML parser."""
+
+    def __init__(self) -> None:
+        super().__init__(convert_charrefs=True)
+        self.tags: list[tuple[str, dict[str, str | None]]] = []
+        self.text: list[str] = []
+        self.ids: set[str] = set()
+
+    def handle_starttag(self, tag, attrs):
+        attrs = dict(attrs)
+        self.tags.append((tag, attrs))
+        if attrs.get("id"):
+            self.ids.add(attrs["id"])
+
+    def handle_data(self, data):
+        self.text.append(data)
+
+
+def parse(html: str) -> Page:
+    page = Page()
+    page.feed(html)
+    page.close()
+    return page
+
+
+@pytest.fixture(scope="module")
+def bikeshare():
+    loaded = load_file("specs/bikeshare.qlc")
+    return loaded.questionnaire, run_checks(loaded)
+
+
+@pytest.fixture(scope="module")
+def report_html(bikeshare):
+    q, diags = bikeshare
+    data = from_validation(q, fake_result(q), diags, settings={"mapping": {"id": "id"}}, export="demo.csv")
+    return data, render_html(data)
+
+
+def test_every_part_is_present(report_html) -> None:
+    _, html = report_html
+    page = parse(html)
+    for part in ("summary", "summary-cards", "dispositions", "finding-summary", "chart", "item-chart", "items",
+                 "item-table", "findings", "lint", "settings", "settings-table", "routing"):
+        assert part in page.ids, part
+    assert html.count("<svg") == 2  # chart and routing picture, inline
+
+
+def test_self_contained_no_scripts_no_network(report_html) -> None:
+    _, html = report_html
+    page = parse(html)
+    tags = {tag for tag, _ in page.tags}
+    assert "script" not in tags and "link" not in tags and "iframe" not in tags and "img" not in tags
+    for tag, attrs in page.tags:
+        for key in ("src", "href", "xlink:href", "action"):
+            value = attrs.get(key)
+            assert value is None or value.startswith("#"), (tag, key, value)
+    assert "url(http" not in html and "@import" not in html
+
+
+def test_respondent_text_is_escaped_everywhere(report_html) -> None:
+    _, html = report_html
+    assert "<script" not in html.lower()
+    assert "<b>bold</b>" not in html
+    assert "&lt;script&gt;" in html
+    text = "".join(parse(html).text)
+    for value in NASTY:  # shown literally, as text
+        assert value in text, value
+
+
+def test_items_in_questionnaire_order_grouped_by_section(report_html, bikeshare) -> None:
+    data, _ = report_html
+    q, _ = bikeshare
+    table = data.ordered_items()
+    assert list(table["item"]) == [e.name for e in q.items()]
+    assert list(dict.fromkeys(table["section"])) == ["screening", "riding", "lapsed", "overall"]
+
+
+def test_summary_counts_agree_with_sql(report_html) -> None:
+    # DuckDB as an independent oracle for the per-check/severity counts.
+    duckdb = pytest.importorskip("duckdb")
+    data, html = report_html
+    findings = data.findings  # noqa: F841 - read by the SQL below
+    expected = duckdb.sql(
+        "select \"check\", severity, count(*) as n, count(distinct respondent) as r from findings group by all"
+    ).fetchall()
+    got = {(r["check"], r["severity"]): (r["findings"], r["respondents"]) for r in data.findings_summary().to_dict("records")}
+    assert got == {(c, s): (n, r) for c, s, n, r in expected}
+    total = sum(data.dispositions.values())
+    assert total == data.respondents == 200
+    assert f"<td class=\"num\">{data.dispositions['complete']}</td>" in html
+
+
+def test_findings_grouped_by_check_with_respondent_ids(report_html) -> None:
+    data, html = report_html
+    page = parse(html)
+    assert {"check-out-of-path-error", "check-missing-on-path-warning", "check-straightline-info"} <= page.ids
+    some_id = data.findings.loc[data.findings["check"] == "out-of-path", "respondent"].iloc[0]
+    assert some_id in "".join(page.text)
+
+
+def test_lint_diagnostics_show_their_source_lines() -> None:
+    text = 'survey t "T"\n\ncodes yesno\n  yes = 1 "Yes"\n  no = 2 "No"\n\nq1: single yesno "A?"\nq2: text "B?" when q_one = yes\n'
+    loaded = load_text(text, "typo.qlc")
+    diags = run_checks(loaded)
+    assert any(d.check == "unknown-name" for d in diags)
+    html = render_html(ReportData(loaded.questionnaire, diags))
+    assert "unknown-name" in html
+    assert "q2: text &#34;B?&#34; when q_one = yes" in html  # the source line, escaped
+    assert "typo.qlc:8:" in html
+
+
+def test_thresholds_and_policy_are_listed(report_html) -> None:
+    _, html = report_html
+    text = "".join(parse(html).text)
+    assert "thresholds.speeder.min_seconds_per_item" in text and "mapping.id" in text
+
+
+def test_notebook_fragment_has_summary_and_chart(report_html) -> None:
+    data, _ = report_html
+    fragment = render_fragment(data)
+    assert 'id="summary-cards"' in fragment and 'id="item-chart"' in fragment and "<svg" in fragment
+    assert "<html" not in fragment and "<script" not in fragment.lower()
+
+
+def test_report_command_spec_only(tmp_path) -> None:
+    out = tmp_path / "spec.html"
+    result = CliRunner().invoke(cli, ["report", "specs/bikeshare.qlc", "--out", str(out)])
+    assert result.exit_code == 0, result.output
+    page = parse(out.read_text(encoding="utf-8"))
+    assert "routing" in page.ids and "lint" in page.ids and "item-table" not in page.ids
+    result = CliRunner().invoke(cli, ["report", "specs/bikeshare.qlc", "--out", str(tmp_path / "no" / "x.html")])
+    assert result.exit_code == 2 and "cannot write" in result.output
+
+
+def test_templates_ship_inside_the_package() -> None:
+    from importlib.resources import files
+
+    folder = files("logiccheck.report") / "templates"
+    for name in ("report.html.j2", "fragment.html.j2", "_summary.html.j2", "_chart.html.j2", "_styles.css"):
+        assert (folder / name).is_file(), name
