@@ -88,7 +88,7 @@ def test_picture_bytes() -> None:
 @pytest.mark.skipif(importlib.util.find_spec("logiccheck.data") is not None, reason="the data stage is present")
 def test_validate_without_the_data_stage_says_so() -> None:
     survey = logiccheck.load("specs/bikeshare.qlc")
-    with pytest.raises(logiccheck.StageMissing, match="logiccheck.data"):
+    with pytest.raises(logiccheck.StageMissing, match=r"logiccheck\.data"):
         survey.validate(pd.DataFrame({"id": [1]}))
-    with pytest.raises(logiccheck.StageMissing, match="logiccheck.clean"):
+    with pytest.raises(logiccheck.StageMissing, match=r"logiccheck\.clean"):
         survey.clean(pd.DataFrame({"id": [1]}))

@@ -10,7 +10,7 @@ from __future__ import annotations
 import io
 from collections.abc import Iterable
 from dataclasses import dataclass
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Any, ClassVar
 
 from logiccheck.diagnostics import Diagnostic
 from logiccheck.model.questionnaire import Questionnaire
@@ -69,7 +69,16 @@ class Picture:
 
 
 class _Fitter:
-    """Shortens text with an ellipsis until it fits a width, measured by the renderer."""
+    """Shortens text with an ellipsis until it fits a width.
+
+    Widths are the sum of each character's measured advance (cached per font), plus a
+    margin: measuring whole strings costs a font layout per attempt and dominated the
+    drawing time, and summing advances over-estimates slightly (no kerning), so fitted
+    text never spills.
+    """
+
+    _cache: ClassVar[dict[tuple[str, float, str], float]] = {}
+    MARGIN = 1.03
 
     def __init__(self, figure: Figure) -> None:
         from matplotlib.backends.backend_agg import FigureCanvasAgg
@@ -77,12 +86,18 @@ class _Fitter:
         self.renderer = FigureCanvasAgg(figure).get_renderer()
         self.dpi = figure.dpi
 
-    def width(self, text: str, size: float, weight: str) -> float:
-        from matplotlib.font_manager import FontProperties
+    def _char(self, char: str, size: float, weight: str) -> float:
+        key = (char, size, weight)
+        if key not in self._cache:
+            from matplotlib.font_manager import FontProperties
 
-        prop = FontProperties(size=size, weight=weight)
-        w, _, _ = self.renderer.get_text_width_height_descent(text, prop, ismath=False)
-        return w / self.dpi
+            prop = FontProperties(size=size, weight=weight)
+            w, _, _ = self.renderer.get_text_width_height_descent(char, prop, ismath=False)
+            self._cache[key] = w / self.dpi
+        return self._cache[key]
+
+    def width(self, text: str, size: float, weight: str) -> float:
+        return self.MARGIN * sum(self._char(c, size, weight) for c in text)
 
     def fit(self, text: str, width: float, size: float, weight: str = "normal") -> str:
         if self.width(text, size, weight) <= width:
@@ -113,7 +128,7 @@ def _layout(picture: FlowPicture) -> tuple[dict[str, tuple[float, float]], list[
     return boxes, bands, y - GAP_Y + LEGEND_H + MARGIN
 
 
-def draw_picture(picture: FlowPicture, name: str = "") -> Picture:
+def draw_picture(picture: FlowPicture, name: str = "", *, legend: bool = True) -> Picture:
     """Draw one picture; raises ReportExtraMissing without matplotlib."""
     require_report_extra("matplotlib")
     from matplotlib.figure import Figure
@@ -137,7 +152,7 @@ def draw_picture(picture: FlowPicture, name: str = "") -> Picture:
     anchors: dict[str, Any] = {}
     for gid, top, height in bands:
         group = groups[gid]
-        ax.add_patch(Rectangle((MARGIN, top), band_w, height, facecolor="#fafafa" if gid != "_inputs" else "#ffffff",
+        ax.add_artist(Rectangle((MARGIN, top), band_w, height, facecolor="#fafafa" if gid != "_inputs" else "#ffffff",
                                edgecolor="#c8c8c8", linewidth=0.8, zorder=0,
                                linestyle="-" if gid != "_inputs" else "--"))
         suffix = "  (shown only when its condition holds)" if group.condition else ""
@@ -146,7 +161,7 @@ def draw_picture(picture: FlowPicture, name: str = "") -> Picture:
         if group.condition:
             marker = Circle((MARGIN + band_w - 0.3, top + HEADER / 2), 0.07, facecolor="#7a3e9d",
                             edgecolor="none", zorder=4)
-            ax.add_patch(marker)
+            ax.add_artist(marker)
             anchors[gid] = marker
 
     boxes: dict[str, tuple[float, float, float, float]] = {}
@@ -158,7 +173,7 @@ def draw_picture(picture: FlowPicture, name: str = "") -> Picture:
         patch = FancyBboxPatch((x, y), BOX_W, BOX_H, boxstyle=style, facecolor=face, edgecolor=edge,
                                linewidth=thick, linestyle="--" if node.kind == "skip" else "-",
                                hatch="///" if node.unreachable else None, zorder=3)
-        ax.add_patch(patch)
+        ax.add_artist(patch)
         anchors[nid] = patch
         boxes[nid] = (x, y, BOX_W, BOX_H)
         label_w = BOX_W - 2 * TEXT_PAD
@@ -174,12 +189,13 @@ def draw_picture(picture: FlowPicture, name: str = "") -> Picture:
         if source is None or target is None or source is target:
             continue
         colour, line = EDGE_STYLE.get(edge.via, ("#555555", "-"))
-        sx, sy = _centre(source)
-        tx, ty = _centre(target)
-        rad = 0.35 if abs(sy - ty) < 0.01 else 0.12
-        ax.add_patch(FancyArrowPatch((sx, sy), (tx, ty), patchA=source, patchB=target,
-                                     connectionstyle=f"arc3,rad={rad}", arrowstyle="-|>", mutation_scale=9,
-                                     color=colour, linestyle=line, linewidth=1.0, alpha=0.75, zorder=2))
+        start, end = _edge_point(source, _centre(target)), _edge_point(target, _centre(source))
+        rad = 0.35 if abs(start[1] - end[1]) < 0.01 else 0.12
+        # Endpoints are computed on the box outlines: letting matplotlib clip the arrow to
+        # the patches costs a bezier search per arrow and dominated the drawing time.
+        ax.add_artist(FancyArrowPatch(start, end, shrinkA=0, shrinkB=2, connectionstyle=f"arc3,rad={rad}",
+                                     arrowstyle="-|>", mutation_scale=9, color=colour, linestyle=line,
+                                     linewidth=1.0, alpha=0.75, zorder=2))
 
     handles: list[Any] = []
     kinds = sorted({node.kind for node in picture.nodes.values()}, key=list(BOX_STYLE).index)
@@ -191,7 +207,7 @@ def draw_picture(picture: FlowPicture, name: str = "") -> Picture:
     for via in sorted({e.via for e in picture.edges}, key=list(EDGE_STYLE).index):
         colour, line = EDGE_STYLE[via]
         handles.append(Line2D([], [], color=colour, linestyle=line, label=EDGE_LABEL[via]))
-    if handles:
+    if handles and legend:
         ax.legend(handles=handles, loc="lower left", bbox_to_anchor=(MARGIN, total_h - MARGIN),
                   bbox_transform=ax.transData, ncol=5, fontsize=7.5, frameon=False, borderaxespad=0)
     return Picture(name, fig, boxes)
@@ -203,14 +219,38 @@ def _centre(patch: Any) -> tuple[float, float]:
     return patch.get_x() + patch.get_width() / 2, patch.get_y() + patch.get_height() / 2
 
 
+def _edge_point(patch: Any, towards: tuple[float, float]) -> tuple[float, float]:
+    """Where the line from the patch's centre towards a point leaves its outline."""
+    cx, cy = _centre(patch)
+    dx, dy = towards[0] - cx, towards[1] - cy
+    if hasattr(patch, "center"):  # a section's marker dot
+        return cx, cy
+    half_w, half_h = patch.get_width() / 2, patch.get_height() / 2
+    if dx == 0 and dy == 0:
+        return cx, cy
+    scale = min(half_w / abs(dx) if dx else float("inf"), half_h / abs(dy) if dy else float("inf"))
+    return cx + dx * scale, cy + dy * scale
+
+
 def routing_pictures(
-    q: Questionnaire, diagnostics: Iterable[Diagnostic] = (), *, max_nodes: int = MAX_NODES
+    q: Questionnaire,
+    diagnostics: Iterable[Diagnostic] = (),
+    *,
+    max_nodes: int = MAX_NODES,
+    legend_every: bool = True,
 ) -> list[Picture]:
-    """One picture, or one per band when the spec has more than `max_nodes` boxes."""
+    """One picture, or one per band when the spec has more than `max_nodes` boxes.
+
+    `legend_every=False` keeps the legend on the first picture only (pictures shown
+    together on one page need it once, and legends are the costliest part to lay out).
+    """
     whole = flow_picture(q, diagnostics)
     if len(whole.nodes) <= max_nodes:
         return [draw_picture(whole)]
-    return [draw_picture(whole.subset(g.id), _picture_name(g.id)) for g in whole.groups]
+    return [
+        draw_picture(whole.subset(g.id), _picture_name(g.id), legend=legend_every or i == 0)
+        for i, g in enumerate(whole.groups)
+    ]
 
 
 def _picture_name(group_id: str) -> str:

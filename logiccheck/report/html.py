@@ -137,7 +137,7 @@ def report_context(data: ReportData, *, pictures: bool = True, chart: bool = Tru
     if pictures:
         from logiccheck.report.graph_picture import routing_pictures
 
-        picture_svgs = [(p.name, _svg(p.figure)) for p in routing_pictures(q, data.diagnostics)]
+        picture_svgs = [(p.name, _svg(p.figure)) for p in routing_pictures(q, data.diagnostics, legend_every=False)]
     summary = data.findings_summary()
     return {
         "title": q.spec.title or q.spec.name or q.file,
