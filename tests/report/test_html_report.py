@@ -159,3 +159,23 @@ def test_templates_ship_inside_the_package() -> None:
     folder = files("logiccheck.report") / "templates"
     for name in ("report.html.j2", "fragment.html.j2", "_summary.html.j2", "_chart.html.j2", "_styles.css"):
         assert (folder / name).is_file(), name
+
+
+@pytest.mark.slow
+def test_templates_are_in_the_wheel(tmp_path) -> None:
+    import importlib.util
+    import subprocess
+    import sys
+    import zipfile
+    from pathlib import Path
+
+    if importlib.util.find_spec("hatchling") is None or importlib.util.find_spec("build") is None:
+        pytest.skip("building the wheel offline needs hatchling and build installed")
+    root = Path(__file__).resolve().parents[2]
+    done = subprocess.run([sys.executable, "-m", "build", "--wheel", "--no-isolation", "--outdir", str(tmp_path),
+                           str(root)], capture_output=True, text=True, check=False)
+    assert done.returncode == 0, done.stderr[-800:]
+    wheel = next(tmp_path.glob("*.whl"))
+    names = set(zipfile.ZipFile(wheel).namelist())
+    for name in ("report.html.j2", "fragment.html.j2", "_summary.html.j2", "_chart.html.j2", "_styles.css"):
+        assert f"logiccheck/report/templates/{name}" in names
