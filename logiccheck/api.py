@@ -142,18 +142,32 @@ class Survey:
         self,
         data: str | Path | pd.DataFrame,
         *,
-        mapping: str | Path | None = None,
+        mapping: str | Path | Any | None = None,
         frame: str | Path | None = None,
         settings: Mapping[str, Any] | None = None,
     ) -> Validation:
-        """Run the data checks on an export (a file path or a DataFrame)."""
+        """Run the data checks on an export (a file path or a DataFrame).
+
+        `mapping` is a mapping TOML path or a `logiccheck.data.DataMapping`; `frame` a
+        sample-frame CSV. Raises `logiccheck.data.DataReadError` / `MappingError` for bad input.
+        """
         try:
             data_stage = importlib.import_module("logiccheck.data")
         except ModuleNotFoundError as err:
             raise StageMissing("validation needs the data stage (logiccheck.data), which this build lacks") from err
-        raw = data_stage.validate(self.questionnaire, data, mapping=mapping, frame=frame)
+        if mapping is None:
+            mapping_obj = data_stage.DataMapping()
+        elif isinstance(mapping, (str, Path)):
+            mapping_obj = data_stage.load_mapping(mapping)
+        else:
+            mapping_obj = mapping
+        if frame is not None:
+            mapping_obj = mapping_obj.model_copy(update={"frame": str(frame)})
+        raw = data_stage.validate(self.questionnaire, data, mapping_obj, keep_cells=False)
+        used = {"mapping": mapping_obj.model_dump(exclude_defaults=True) or "defaults (DESIGN §6 layout)"}
+        used.update(settings or {})
         export = str(data) if isinstance(data, (str, Path)) else None
-        return self.validation_view(raw, settings=settings, export=export)
+        return self.validation_view(raw, settings=used, export=export)
 
     def validation_view(
         self, raw: Any, *, settings: Mapping[str, Any] | None = None, export: str | None = None

@@ -96,7 +96,8 @@ def _load() -> None:
         try:
             importlib.import_module(module)
         except ModuleNotFoundError as err:
-            # A stage not built yet; any other missing module is a real error.
+            # A stage not built yet (the module or its package); any other missing
+            # module is a real error.
             if err.name is None or not (module == err.name or module.startswith(err.name + ".")):
                 raise
 

@@ -5,10 +5,13 @@ from __future__ import annotations
 import click
 
 from logiccheck import __version__
+from logiccheck.cli.check import check_command
 from logiccheck.cli.explain import explain_command
 from logiccheck.cli.graph import graph_command
 from logiccheck.cli.lint import lint_command
 from logiccheck.cli.report import report_command
+from logiccheck.cli.simulate import simulate_command
+from logiccheck.cli.validate import validate_command
 
 
 @click.group(context_settings={"help_option_names": ["-h", "--help"]})
@@ -21,6 +24,9 @@ def cli() -> None:
 cli.add_command(lint_command)
 cli.add_command(explain_command)
 cli.add_command(graph_command)
+cli.add_command(validate_command)
+cli.add_command(check_command)
+cli.add_command(simulate_command)
 cli.add_command(report_command)
 
 

@@ -34,10 +34,23 @@ def _names(expr: object) -> list[tuple[str, Span]]:
 
 
 def reads_of(q: Questionnaire, entry: Entry) -> list[Read]:
-    """Everything one statement reads, in reading order."""
+    """Everything one statement reads, in reading order (computed once per statement)."""
+    cache = q._cache.setdefault("reads", {})
+    found = cache.get(entry.index)
+    if found is None:
+        found = cache[entry.index] = _reads_of(q, entry)
+    return found
+
+
+def _reads_of(q: Questionnaire, entry: Entry) -> list[Read]:
     out: list[Read] = []
+    # A section or grid condition is shared by every statement in it: walk it once.
+    context_cache = q._cache.setdefault("context_reads", {})
     for owner, expr in entry.context:
-        out.extend(Read(name, span, "context", owner) for name, span in _names(expr))
+        reads = context_cache.get(id(owner))
+        if reads is None:
+            reads = context_cache[id(owner)] = [Read(name, span, "context", owner) for name, span in _names(expr)]
+        out.extend(reads)
     stmt = entry.stmt
     if entry.kind == "let":
         out.extend(Read(name, span, "let") for name, span in _names(entry.own))

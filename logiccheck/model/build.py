@@ -1,4 +1,8 @@
-"""Parse tree to typed nodes. Lark trees keep `meta`; we copy it into every node."""
+"""Parse tree to typed nodes. Lark trees keep `meta`; we copy it into every node.
+
+Nodes are made with `nodes.construct` (no validation): the parse tree already guarantees their shape, and
+validating some 50,000 nodes of a large spec again costs about half a second.
+"""
 
 from __future__ import annotations
 
@@ -39,8 +43,8 @@ class Builder:
     def span_tree(self, tree: Tree) -> Span:
         meta = tree.meta
         if getattr(meta, "empty", True):
-            return Span(file=self.file, line=1, column=1)
-        return Span(
+            return n.construct(Span, file=self.file, line=1, column=1)
+        return n.construct(Span,
             file=self.file,
             line=meta.line,
             column=meta.column,
@@ -49,7 +53,7 @@ class Builder:
         )
 
     def span_tok(self, tok: Token) -> Span:
-        return Span(
+        return n.construct(Span,
             file=self.file,
             line=tok.line or 1,
             column=tok.column or 1,
@@ -67,7 +71,7 @@ class Builder:
 
     # -- top level
     def build(self, tree: Tree | None) -> n.Spec:
-        spec = n.Spec(file=self.file)
+        spec = n.construct(n.Spec, file=self.file)
         if tree is None:
             return spec
         for child in tree.children:
@@ -93,7 +97,7 @@ class Builder:
 
     def code_line(self, tree: Tree) -> n.CodeOption:
         label, _eq, value, text = tree.children
-        return n.CodeOption(
+        return n.construct(n.CodeOption,
             span=self.span_tok(label),
             label=str(label),
             value=self.signed_int(value),
@@ -105,7 +109,7 @@ class Builder:
 
     def codes_def(self, tree: Tree) -> n.CodeList:
         name = tree.children[0]
-        return n.CodeList(
+        return n.construct(n.CodeList,
             span=self.span_tok(name), name=str(name), options=self.code_lines(tree.children[1:])
         )
 
@@ -128,9 +132,9 @@ class Builder:
             ref = tree.children[0]
             if ref.data == "codes_named":
                 tok = ref.children[0]
-                return n.TypeSpec(span=span, kind=kind, codes_name=str(tok), codes_span=self.span_tok(tok))
+                return n.construct(n.TypeSpec, span=span, kind=kind, codes_name=str(tok), codes_span=self.span_tok(tok))
             options = [
-                n.CodeOption(
+                n.construct(n.CodeOption,
                     span=self.span_tok(c.children[0]),
                     label=str(c.children[0]),
                     value=self.signed_int(c.children[2]),
@@ -139,8 +143,8 @@ class Builder:
                 for c in ref.children
                 if isinstance(c, Tree)
             ]
-            inline = n.CodeList(span=self.span_tree(ref), name="", options=options, inline=True)
-            return n.TypeSpec(span=span, kind=kind, inline_codes=inline, codes_span=inline.span)
+            inline = n.construct(n.CodeList, span=self.span_tree(ref), name="", options=options, inline=True)
+            return n.construct(n.TypeSpec, span=span, kind=kind, inline_codes=inline, codes_span=inline.span)
         if kind in ("number", "decimal"):
             rng = tree.children[0]
             lo, hi = self.signed_num(rng.children[0]), self.signed_num(rng.children[1])
@@ -148,8 +152,8 @@ class Builder:
                 self.error(self.span_tree(rng), "a `number` range takes whole numbers; use `decimal` for fractions")
             if lo > hi:
                 self.error(self.span_tree(rng), f"the range {lo:g}..{hi:g} is empty: the low end is above the high end")
-            return n.TypeSpec(span=span, kind=kind, lo=lo, hi=hi)
-        return n.TypeSpec(span=span, kind=kind)
+            return n.construct(n.TypeSpec, span=span, kind=kind, lo=lo, hi=hi)
+        return n.construct(n.TypeSpec, span=span, kind=kind)
 
     # -- options
     def options(self, stmt: str, children: list[Any]) -> dict[str, Any]:
@@ -178,7 +182,7 @@ class Builder:
         return found
 
     def flags(self, opts: dict[str, Any]) -> n.Flags:
-        return n.Flags(
+        return n.construct(n.Flags,
             gate=bool(opts.get("gate")),
             key=bool(opts.get("key")),
             required=bool(opts.get("required")),
@@ -196,11 +200,11 @@ class Builder:
         if kind == "sample":
             name = ch[0]
             self.options("sample", ch[2:])
-            return n.Sample(span=span, name=str(name), name_span=self.span_tok(name), type=self.type_spec(ch[1]))
+            return n.construct(n.Sample, span=span, name=str(name), name_span=self.span_tok(name), type=self.type_spec(ch[1]))
         if kind == "item":
             name, tspec, text = ch[0], ch[1], ch[2]
             opts = self.options("item", ch[3:])
-            return n.Item(
+            return n.construct(n.Item,
                 span=span,
                 name=str(name),
                 name_span=self.span_tok(name),
@@ -212,15 +216,15 @@ class Builder:
             )
         if kind == "let":
             name, _eq, expr = ch
-            return n.Let(span=span, name=str(name), name_span=self.span_tok(name), expr=self.expr(expr))
+            return n.construct(n.Let, span=span, name=str(name), name_span=self.span_tok(name), expr=self.expr(expr))
         if kind == "skip":
             target = ch[0]
             opts = self.options("skip", ch[1:])
-            return n.Skip(span=span, target=str(target), target_span=self.span_tok(target), when=opts.get("when"))
+            return n.construct(n.Skip, span=span, target=str(target), target_span=self.span_tok(target), when=opts.get("when"))
         if kind == "stop":
             name, text = ch[0], ch[1]
             opts = self.options("stop", ch[2:])
-            return n.Stop(
+            return n.construct(n.Stop,
                 span=span,
                 name=str(name),
                 name_span=self.span_tok(name),
@@ -233,7 +237,7 @@ class Builder:
             opts = self.options("check", ch[2:])
             if "require" not in opts:
                 self.error(self.span_tok(name), "a `check` needs `require COND`: the rule that must hold")
-            return n.Check(
+            return n.construct(n.Check,
                 span=span,
                 name=str(name),
                 name_span=self.span_tok(name),
@@ -247,7 +251,7 @@ class Builder:
             rest = [c for c in ch[2:] if c is not None]
             opts = self.options("section", [c for c in rest if c.data.startswith(("opt_", "clause_line"))])
             body = [self.statement(c, None) for c in rest if not c.data.startswith(("opt_", "clause_line"))]
-            return n.Section(
+            return n.construct(n.Section,
                 span=span,
                 name=str(name),
                 name_span=self.span_tok(name),
@@ -270,7 +274,7 @@ class Builder:
                 merged = {k: v for k, v in opts.items() if k not in ("when", "shuffled")}
                 merged.update({k: v for k, v in ropts.items() if k != "when"})
                 rows.append(
-                    n.Item(
+                    n.construct(n.Item,
                         span=self.span_tree(row),
                         name=str(rname),
                         name_span=self.span_tok(rname),
@@ -284,7 +288,7 @@ class Builder:
                 )
             if not rows:
                 self.error(self.span_tok(name), f"grid `{name}` has no rows; indent one `row_name \"text\"` line per row under it")
-            return n.Grid(
+            return n.construct(n.Grid,
                 span=span,
                 name=str(name),
                 name_span=self.span_tok(name),
@@ -302,41 +306,41 @@ class Builder:
         span = self.span_of(node)
         if isinstance(node, Token):
             if node.type == "NAME":
-                return n.Ref(span=span, name=str(node))
-            return n.Num(span=span, value=float(node))
+                return n.construct(n.Ref, span=span, name=str(node))
+            return n.construct(n.Num, span=span, value=float(node))
         kind = node.data
         ch = node.children
         if kind == "num":
-            return n.Num(span=span, value=float(ch[0]))
+            return n.construct(n.Num, span=span, value=float(ch[0]))
         if kind == "ref":
-            return n.Ref(span=span, name=str(ch[0]))
+            return n.construct(n.Ref, span=span, name=str(ch[0]))
         if kind == "signed_num":
-            return n.Num(span=span, value=self.signed_num(node))
+            return n.construct(n.Num, span=span, value=self.signed_num(node))
         if kind == "neg":
             operand = self.expr(ch[1])
             if isinstance(operand, n.Num):
-                return n.Num(span=span, value=-operand.value)
-            return n.Neg(span=span, operand=operand)
+                return n.construct(n.Num, span=span, value=-operand.value)
+            return n.construct(n.Neg, span=span, operand=operand)
         if kind == "arith":
-            return n.Arith(span=span, op=str(ch[1]), left=self.expr(ch[0]), right=self.expr(ch[2]))
+            return n.construct(n.Arith, span=span, op=str(ch[1]), left=self.expr(ch[0]), right=self.expr(ch[2]))
         if kind == "compare":
-            return n.Compare(span=span, op=str(ch[1]), left=self.expr(ch[0]), right=self.expr(ch[2]))
+            return n.construct(n.Compare, span=span, op=str(ch[1]), left=self.expr(ch[0]), right=self.expr(ch[2]))
         if kind == "in_list":
-            return n.InList(span=span, subject=self.expr(ch[0]), values=[self.expr(c) for c in ch[1:]])
+            return n.construct(n.InList, span=span, subject=self.expr(ch[0]), values=[self.expr(c) for c in ch[1:]])
         if kind == "in_range":
             rng = ch[1]
-            return n.InRange(
+            return n.construct(n.InRange,
                 span=span,
                 subject=self.expr(ch[0]),
                 lo=self.signed_num(rng.children[0]),
                 hi=self.signed_num(rng.children[1]),
             )
         if kind in ("has_one", "has_any", "has_all"):
-            return n.Has(span=span, mode=kind[4:], subject=self.expr(ch[0]), values=[self.expr(c) for c in ch[1:]])
+            return n.construct(n.Has, span=span, mode=kind[4:], subject=self.expr(ch[0]), values=[self.expr(c) for c in ch[1:]])
         if kind in ("count_", "answered_", "asked_"):
-            return n.Func(span=span, func=kind[:-1], name=str(ch[0]), name_span=self.span_tok(ch[0]))
+            return n.construct(n.Func, span=span, func=kind[:-1], name=str(ch[0]), name_span=self.span_tok(ch[0]))
         if kind == "not_":
-            return n.Not(span=span, operand=self.expr(ch[0]))
+            return n.construct(n.Not, span=span, operand=self.expr(ch[0]))
         if kind in ("and_", "or_"):
             cls = n.And if kind == "and_" else n.Or
             operands: list[Any] = []
@@ -346,7 +350,7 @@ class Builder:
                     operands.extend(sub.operands)
                 else:
                     operands.append(sub)
-            return cls(span=span, operands=operands)
+            return n.construct(cls, span=span, operands=operands)
         raise ValueError(f"unexpected tree node {kind}")
 
 

@@ -15,14 +15,16 @@ BOOLEAN_NODES = (n.Compare, n.InList, n.InRange, n.Has, n.Not, n.And, n.Or)
 
 def pipes_in(text: str, span: Span) -> list[tuple[str, Span]]:
     """Names piped into a quoted text, with their positions (text on one line)."""
-    out = []
+    out: list[tuple[str, Span]] = []
+    if "{" not in text:
+        return out
     for match in PIPE.finditer(text):
         # +1 for the opening quote; the text is on the span's line.
         col = span.column + 1 + match.start(1)
         out.append(
             (
                 match.group(1),
-                Span(file=span.file, line=span.line, column=col, end_line=span.line, end_column=col + len(match.group(1))),
+                Span.model_construct(file=span.file, line=span.line, column=col, end_line=span.line, end_column=col + len(match.group(1))),
             )
         )
     return out
@@ -32,6 +34,7 @@ class Resolver:
     def __init__(self, spec: n.Spec, text: str) -> None:
         self.q = Questionnaire(spec=spec, text=text)
         self.block_when: dict[int, Any] = {}  # id(section or grid) -> resolved condition
+        self.peeking: set[str] = set()  # derived values whose kind is being inferred
 
     # ------------------------------------------------------------ flatten
     def run(self) -> Questionnaire:
@@ -211,8 +214,15 @@ class Resolver:
             return "unknown"
         if entry.kind == "let":
             if name not in q.let_kinds:
-                # Not resolved yet (a forward or circular reference): infer without judging.
-                return self.kind_of_expr(entry.stmt.expr, entry, "peek", judge=False)
+                # Not resolved yet (a forward or circular reference): infer without judging,
+                # and stop at a name already being inferred (a loop).
+                if name in self.peeking:
+                    return "unknown"
+                self.peeking.add(name)
+                try:
+                    return self.kind_of_expr(entry.stmt.expr, entry, "peek", judge=False)
+                finally:
+                    self.peeking.discard(name)
             return q.let_kinds[name]
         return q.value_kind(name)
 

@@ -1,188 +1,163 @@
-"""What the routing picture shows: boxes, bands and arrows, from the questionnaire.
+"""The drawing of a routing dependency graph, independent of any output format.
 
-Pure data (no drawing library), so any renderer (SVG/PNG here, text formats elsewhere)
-reads the same description. Arrows run from an input to the statement whose condition,
-pipe, derived value or rule reads it; a section's own condition points at its band.
+Every emitter (dot, mermaid, and image formats later) draws the same `Drawing`: nodes
+(items, rows, derived values, sample variables, stops and skips), groups (sections and
+grids, nested as in the spec), and edges from a value to the statement or block whose
+condition, pipe or definition reads it, labelled with the source text of that condition.
 """
 
 from __future__ import annotations
 
-from collections.abc import Iterable
+import re
 from dataclasses import dataclass, field
+from typing import Any, Literal
 
-from logiccheck.diagnostics import Diagnostic
-from logiccheck.graph.deps import dependency_graph, node_id
+from logiccheck.diagnostics import Span
+from logiccheck.graph import reads_of
 from logiccheck.model import nodes as n
 from logiccheck.model.questionnaire import Entry, Questionnaire
 
-# The check whose diagnostics mark a box as unreachable (DESIGN §4).
-UNREACHABLE_CHECK = "unreachable-item"
-
-NodeKind = str  # "item" | "gate" | "row" | "let" | "sample" | "stop" | "skip" | "check"
+NodeKind = Literal["item", "gate", "let", "sample", "stop", "skip"]
+MAX_LABEL = 60  # longer condition texts are cut with an ellipsis
 
 
 @dataclass
-class FlowNode:
+class DrawNode:
     id: str
     name: str
     kind: NodeKind
-    group: str
-    detail: str
-    index: int
+    detail: str  # e.g. "single yesno", "number 0..120"
+    group: str | None  # id of the innermost group, or None at top level
     line: int
-    unreachable: bool = False
-    key: bool = False
 
 
 @dataclass
-class FlowGroup:
-    """A band: a section, or a run of statements outside any section."""
-
+class DrawGroup:
     id: str
+    name: str
+    kind: Literal["section", "grid"]
     title: str
-    nodes: list[str] = field(default_factory=list)
-    condition: bool = False  # the section has its own `when`
-
-
-@dataclass(frozen=True)
-class FlowEdge:
-    source: str  # node id of the input
-    target: str  # node id, or a group id for a section's condition
-    via: str  # "condition" | "context" | "let" | "pipe" | "check" | "skip"
+    parent: str | None
+    shuffled: bool = False
+    condition: str | None = None
+    nodes: list[str] = field(default_factory=list)  # node ids directly inside
+    children: list[str] = field(default_factory=list)  # group ids directly inside
 
 
 @dataclass
-class FlowPicture:
+class DrawEdge:
+    source: str  # the node read
+    target: str  # the node or group whose condition reads it
+    label: str  # the condition's source text ("pipe" for a piped value)
+    via: str  # "condition" | "context" | "let" | "pipe"
+
+
+@dataclass
+class Drawing:
     title: str
-    nodes: dict[str, FlowNode]
-    groups: list[FlowGroup]
-    edges: list[FlowEdge]
-
-    def subset(self, group_id: str) -> FlowPicture:
-        """One band, plus the inputs it reads from other bands as a band of their own."""
-        group = next(g for g in self.groups if g.id == group_id)
-        inside = set(group.nodes)
-        edges = [e for e in self.edges if e.target in inside or e.target == group_id]
-        outside = sorted(
-            {e.source for e in edges if e.source not in inside}, key=lambda i: self.nodes[i].index
-        )
-        groups = []
-        nodes = {i: self.nodes[i] for i in group.nodes}
-        if outside:
-            groups.append(FlowGroup("_inputs", "Read from other sections", list(outside)))
-            nodes.update({i: self.nodes[i] for i in outside})
-        groups.append(group)
-        return FlowPicture(f"{self.title} · {group.title}", nodes, groups, edges)
+    nodes: dict[str, DrawNode] = field(default_factory=dict)
+    groups: dict[str, DrawGroup] = field(default_factory=dict)
+    top_nodes: list[str] = field(default_factory=list)
+    top_groups: list[str] = field(default_factory=list)
+    edges: list[DrawEdge] = field(default_factory=list)
 
 
-def _type_text(spec: n.TypeSpec) -> str:
+def span_text(text: str, span: Span | None) -> str:
+    """The source text a span covers, on one line, whitespace collapsed."""
+    if span is None or span.end_line is None or span.end_column is None:
+        return ""
+    lines = text.split("\n")
+    if not 1 <= span.line <= len(lines) or not 1 <= span.end_line <= len(lines):
+        return ""
+    if span.line == span.end_line:
+        piece = lines[span.line - 1][span.column - 1 : span.end_column - 1]
+    else:
+        parts = [lines[span.line - 1][span.column - 1 :]]
+        parts.extend(lines[span.line : span.end_line - 1])
+        parts.append(lines[span.end_line - 1][: span.end_column - 1])
+        piece = " ".join(parts)
+    return re.sub(r"\s+", " ", piece).strip()
+
+
+def _short(label: str) -> str:
+    return label if len(label) <= MAX_LABEL else label[: MAX_LABEL - 1] + "…"
+
+
+def _detail(q: Questionnaire, stmt: Any) -> str:
+    spec = getattr(stmt, "type", None)
+    if spec is None:
+        return ""
     if spec.kind in ("single", "multi"):
-        codes = spec.codes_name or (f"{{{len(spec.inline_codes.options)} codes}}" if spec.inline_codes else "")
-        return f"{spec.kind} {codes}".strip()
-    if spec.kind in ("number", "decimal") and spec.lo is not None:
-        lo, hi = spec.lo, spec.hi
-        fmt = (lambda v: f"{v:g}") if spec.kind == "decimal" else (lambda v: f"{int(v)}")
-        return f"{spec.kind} {fmt(lo)}..{fmt(hi) if hi is not None else ''}"
+        return f"{spec.kind} {spec.codes_name or '{…}'}"
+    if spec.kind in ("number", "decimal"):
+        return f"{spec.kind} {spec.lo:g}..{spec.hi:g}"
     return spec.kind
 
 
-def _describe(entry: Entry) -> tuple[NodeKind, str]:
-    stmt = entry.stmt
-    if entry.kind == "item":
-        if stmt.grid:
-            return "row", f"grid {stmt.grid} · {_type_text(stmt.type)}"
-        kind = "gate" if stmt.flags.gate else "item"
-        return kind, _type_text(stmt.type)
-    if entry.kind == "sample":
-        return "sample", f"sample · {_type_text(stmt.type)}"
-    if entry.kind == "let":
-        return "let", "derived value"
-    if entry.kind == "stop":
-        return "stop", "stop" + (" when …" if stmt.when is not None else " (always)")
-    if entry.kind == "skip":
-        return "skip", f"skip to {stmt.target}"
-    if entry.kind == "check":
-        return "check", "soft check" if stmt.soft else "check"
-    return entry.kind, entry.kind
+def _node_id(entry: Entry) -> str:
+    if entry.kind in ("item", "let", "sample"):
+        return f"n_{entry.name}"
+    return f"{entry.kind}_{entry.name}_{entry.index}"
 
 
-def _top_title(entry: Entry) -> str:
-    return {"sample": "Sample variables (known before the interview)", "check": "Edit rules"}.get(
-        entry.kind, "Outside sections"
-    )
-
-
-def unreachable_names(diagnostics: Iterable[Diagnostic], q: Questionnaire) -> set[str]:
-    """Node ids the routing checks proved unreachable (by item name, else by line)."""
-    by_line = {e.span.line: node_id(e) for e in q.entries}
-    sections = {s.name_span.line: s.name for s in q.sections.values()}
-    out: set[str] = set()
-    for diag in diagnostics:
-        if diag.check != UNREACHABLE_CHECK:
-            continue
-        if diag.item and diag.item in q.symbols:
-            out.add(node_id(q.symbols[diag.item]))
-        elif diag.span.line in by_line:
-            out.add(by_line[diag.span.line])
-        elif diag.span.line in sections:
-            out.add(f"section:{sections[diag.span.line]}")
-    return out
-
-
-def flow_picture(q: Questionnaire, diagnostics: Iterable[Diagnostic] = ()) -> FlowPicture:
-    """The picture's content, in questionnaire order."""
-    dead = unreachable_names(diagnostics, q)
-    graph = dependency_graph(q)
-    nodes: dict[str, FlowNode] = {}
-    groups: list[FlowGroup] = []
+def build_drawing(q: Questionnaire) -> Drawing:
+    """Nodes, nested groups and labelled edges for one questionnaire."""
+    drawing = Drawing(title=q.spec.title or q.spec.name or q.file)
+    group_ids: dict[int, str] = {}
+    entry_nodes: dict[int, str] = {}
     for entry in q.entries:
-        nid = node_id(entry)
-        if nid not in graph or nid in nodes:
+        if entry.kind == "check":
             continue
-        section = entry.section
-        gid = f"section:{section.name}" if section is not None else "_top"
-        if not groups or groups[-1].id != gid:
-            if section is not None:
-                title = f"{section.name} · {section.title}" if section.title else section.name
-                groups.append(FlowGroup(gid, title, condition=section.when is not None))
-            else:
-                groups.append(FlowGroup(gid, _top_title(entry)))
-        kind, detail = _describe(entry)
-        stmt = entry.stmt
-        key = bool(getattr(getattr(stmt, "flags", None), "key", False))
-        section_dead = section is not None and f"section:{section.name}" in dead
-        nodes[nid] = FlowNode(
-            nid, entry.name, kind, gid, detail, entry.index, entry.span.line,
-            unreachable=nid in dead or section_dead, key=key,
-        )
-        groups[-1].nodes.append(nid)
-    # Make repeated runs of a section (interleaved top-level lines) unique band ids.
-    seen: dict[str, int] = {}
-    for group in groups:
-        count = seen.get(group.id, 0)
-        seen[group.id] = count + 1
-        if count:
-            group.id = f"{group.id}#{count}"
-            for nid in group.nodes:
-                nodes[nid].group = group.id
-    first_band = {}
-    for group in groups:
-        first_band.setdefault(group.id.split("#")[0], group.id)
-    edges: set[FlowEdge] = set()
-    for reader, source, data in graph.edges(data=True):
-        if reader not in nodes or source not in nodes:
-            continue
-        for read in data["reads"]:
-            if read.via == "context" and isinstance(read.owner, n.Section):
-                target = first_band.get(f"section:{read.owner.name}", reader)
-                edges.add(FlowEdge(source, target, "context"))
-            else:
-                edges.add(FlowEdge(source, reader, read.via))
+        if entry.kind in ("item", "let", "sample") and q.symbols.get(entry.name) is not entry:
+            continue  # a duplicate definition; the first one stands
+        parent = None
+        for owner, _ in entry.context:
+            if id(owner) not in group_ids:
+                gid = f"g{len(group_ids) + 1}_{owner.name}"
+                group_ids[id(owner)] = gid
+                drawing.groups[gid] = DrawGroup(
+                    id=gid,
+                    name=owner.name,
+                    kind="grid" if isinstance(owner, n.Grid) else "section",
+                    title=getattr(owner, "title", None) or getattr(owner, "text", ""),
+                    parent=parent,
+                    shuffled=bool(getattr(owner, "shuffled", False)),
+                    condition=span_text(q.text, owner.when.span) if owner.when is not None else None,
+                )
+                (drawing.groups[parent].children if parent else drawing.top_groups).append(gid)
+            parent = group_ids[id(owner)]
+        kind: NodeKind
+        if entry.kind == "item":
+            kind = "gate" if entry.stmt.flags.gate else "item"
+        else:
+            kind = entry.kind  # type: ignore[assignment]
+        nid = _node_id(entry)
+        entry_nodes[entry.index] = nid
+        drawing.nodes[nid] = DrawNode(nid, entry.name, kind, _detail(q, entry.stmt), parent, entry.span.line)
+        (drawing.groups[parent].nodes if parent else drawing.top_nodes).append(nid)
+
+    seen: set[tuple[str, str, str]] = set()
     for entry in q.entries:
-        if entry.kind == "skip" and entry.skip_target is not None and entry.skip_target < len(q.entries):
-            target = node_id(q.entries[entry.skip_target])
-            if target in nodes and node_id(entry) in nodes:
-                edges.add(FlowEdge(node_id(entry), target, "skip"))
-    order = {nid: node.index for nid, node in nodes.items()}
-    ordered = sorted(edges, key=lambda e: (order.get(e.source, 0), order.get(e.target, -1), e.target, e.via))
-    return FlowPicture(q.spec.title or q.spec.name or q.file, nodes, groups, ordered)
+        target_node = entry_nodes.get(entry.index)
+        if target_node is None:
+            continue
+        for read in reads_of(q, entry):
+            source = entry_nodes.get(q.symbols[read.name].index)
+            if source is None:
+                continue
+            if read.via == "context":
+                target = group_ids[id(read.owner)]
+                label = span_text(q.text, read.owner.when.span)
+            elif read.via == "pipe":
+                target, label = target_node, "pipe"
+            elif read.via == "let":
+                target, label = target_node, span_text(q.text, entry.stmt.expr.span)
+            else:
+                when = getattr(entry.stmt, "when", None)
+                target, label = target_node, span_text(q.text, when.span) if when is not None else ""
+            key = (source, target, label)
+            if key in seen:
+                continue
+            seen.add(key)
+            drawing.edges.append(DrawEdge(source, target, _short(label), read.via))
+    return drawing

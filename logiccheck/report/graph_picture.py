@@ -15,7 +15,7 @@ from typing import TYPE_CHECKING, Any, ClassVar
 from logiccheck.diagnostics import Diagnostic
 from logiccheck.model.questionnaire import Questionnaire
 from logiccheck.report.extra import require_report_extra
-from logiccheck.report.graph_data import FlowPicture, flow_picture
+from logiccheck.report.graph_flow import FlowGroup, FlowPicture, flow_picture
 
 if TYPE_CHECKING:
     from matplotlib.figure import Figure
@@ -248,13 +248,14 @@ def routing_pictures(
     if len(whole.nodes) <= max_nodes:
         return [draw_picture(whole)]
     return [
-        draw_picture(whole.subset(g.id), _picture_name(g.id), legend=legend_every or i == 0)
+        draw_picture(whole.subset(g.id), _picture_name(g, i), legend=legend_every or i == 0)
         for i, g in enumerate(whole.groups)
     ]
 
 
-def _picture_name(group_id: str) -> str:
-    return group_id.removeprefix("section:").replace("#", "-").lstrip("_") or "top"
+def _picture_name(group: FlowGroup, position: int) -> str:
+    """A section's name, or `top-N` for a run of statements outside sections."""
+    return group.title.split(" · ")[0] if group.line is not None else f"top-{position}"
 
 
 def figure_bytes(figure: Figure, fmt: str) -> bytes:

@@ -108,6 +108,33 @@ def _dispositions(value: Any) -> dict[str, int]:
     return {str(k): int(v) for k, v in dict(value).items()}
 
 
+def findings_from_blocks(blocks: Iterable[Any]) -> pd.DataFrame:
+    """Findings as one frame straight from the data stage's blocks of index arrays
+    (no record object per finding: an export with many problem cells stays cheap)."""
+    parts = []
+    for b in blocks:
+        n = int(b.rows.size)
+        severity = getattr(b.severity, "value", b.severity)
+        if n == 0:
+            parts.append(pd.DataFrame({"check": [b.check], "severity": [severity], "respondent": [None], "row": [None],
+                                       "item": [b.item], "value": [None], "message": [b.message]}))
+            continue
+        values = list(b.values) if b.values is not None else [None] * n
+        if "{value}" in b.message:
+            messages: Any = [b.message.replace("{value}", v or "") for v in values]
+        else:
+            messages = b.message
+        parts.append(pd.DataFrame({
+            "check": b.check, "severity": severity,
+            "respondent": b.ids.astype(str) if b.ids is not None else None,
+            "row": b.rows + 1, "item": b.item, "value": values, "message": messages,
+        }))
+    if not parts:
+        return pd.DataFrame(columns=FINDING_COLUMNS)
+    frame = pd.concat(parts, ignore_index=True)
+    return frame.sort_values("row", kind="stable", na_position="first").reset_index(drop=True)[FINDING_COLUMNS]
+
+
 def from_validation(
     q: Questionnaire,
     result: Any,
@@ -117,11 +144,16 @@ def from_validation(
     export: str | None = None,
 ) -> ReportData:
     """Gather a validation result (any object with table/findings/dispositions)."""
+    export = export or getattr(result, "source", None)
     table = getattr(result, "table", None)
     if table is None:
         table = getattr(result, "items", None)
     items = _frame(table, ITEM_COLUMNS)
-    findings = _frame(getattr(result, "findings", None), FINDING_COLUMNS)
+    blocks = getattr(result, "blocks", None)
+    if blocks is not None:
+        findings = findings_from_blocks(blocks)
+    else:
+        findings = _frame(getattr(result, "findings", None), FINDING_COLUMNS)
     respondents = getattr(result, "respondents", None)
     if respondents is not None and not isinstance(respondents, int):
         respondents = len(respondents)

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import difflib
+import functools
 from dataclasses import dataclass, field
 
 from lark import Tree
@@ -44,25 +46,38 @@ _WORDS = {
     "__ANON_0": "`number`",
 }
 
-# Known mistakes, recognised by lark's match_examples, with the message to give.
+# Known mistakes with the message to give. An error is matched to an example by the
+# parser state it stops in (and the kind of token found there), whatever the nesting:
+# lark's own `match_examples` also compares the depth of the parse stack, so an example
+# written at the top level would never match the same mistake inside a section.
 _EXAMPLES: dict[str, list[str]] = {
-    "a `check` needs `require COND`": [
-        'check c "t" when a = 1\n',
-        'check c "t"\n  when a = 1\n',
-    ],
-    "an item needs `NAME: TYPE \"text\"`; the colon after the name is missing": [
+    "an item is written `NAME: TYPE \"text\"`; add the colon after the name": [
         'a single yesno "t"\n',
         'a number 1..2 "t"\n',
+        'a text "t"\n',
+        'a multi x "t"\n',
+        'a note "t"\n',
+        'a decimal 0..1 "t"\n',
+        'a "t"\n',
     ],
     "the question text must be in double quotes": [
         "a: single yesno t\n",
         "a: text t\n",
         "a: number 1..5 t\n",
     ],
+    "the question text is missing: write it in double quotes after the type": [
+        "a: single yesno\n",
+        "a: text\n",
+        "a: number 1..2\n",
+    ],
     "a range is written LO..HI, for example 0..120": [
         'a: number 1 "t"\n',
         'a: number "t"\n',
         'a: decimal 1 "t"\n',
+        'a: decimal "t"\n',
+        'a: decimal 0.. "t"\n',
+        'a: number 0.. "t"\n',
+        'a: number 0..\n',
     ],
     "`single` and `multi` need a codes name or an inline list { label = 1 \"text\", ... }": [
         'a: single "t"\n',
@@ -73,7 +88,91 @@ _EXAMPLES: dict[str, list[str]] = {
         'codes c\n  yes 1 "Yes"\n',
         'codes c\n  yes = "Yes"\n',
     ],
+    "a skip is written `skip to NAME when COND`": [
+        "skip a when b = 1\n",
+    ],
+    "compare with a single `=`": [
+        'a: text "t" when b == 1\n',
+    ],
+    "only clauses (`when ...`, `require ...`, flags) may be indented under a statement; "
+    "start the next statement at the same indentation as this one": [
+        'a: text "t"\n  b: text "u"\n',
+        'stop s "t"\n  b: text "u"\n',
+    ],
 }
+
+TYPE_WORDS = ("single", "multi", "number", "decimal", "text", "note")
+# Words people reach for when they mean one of ours.
+_TYPE_SYNONYMS = {"integer": "number", "int": "number", "float": "decimal", "real": "decimal", "string": "text"}
+
+
+@functools.lru_cache(maxsize=1)
+def _example_states() -> tuple[dict[tuple[int, str], str], dict[int, str]]:
+    """(parser state, token type) -> hint, and parser state -> hint, from the examples."""
+    exact: dict[tuple[int, str], str] = {}
+    by_state: dict[int, str] = {}
+    parser = spec_parser()
+    for label, examples in _EXAMPLES.items():
+        for example in examples:
+            try:
+                parser.parse(example)
+            except UnexpectedToken as err:
+                position = err.state.position if err.state is not None else -1
+                exact.setdefault((position, err.token.type), label)
+                by_state.setdefault(position, label)
+            except Exception:  # noqa: BLE001 - an example that fails otherwise gives no hint
+                continue
+    return exact, by_state
+
+
+def _hint(err: UnexpectedToken) -> str | None:
+    if err.state is None:
+        return None
+    exact, by_state = _example_states()
+    position = err.state.position
+    return exact.get((position, err.token.type)) or by_state.get(position)
+
+
+def _type_word_hint(err: UnexpectedToken) -> str | None:
+    """`a: singel yesno` -> name the answer types, with a did-you-mean."""
+    words = {_describe({name}).strip("`") for name in err.expected}
+    if err.token.type != "NAME" or not {"single", "multi", "text"} <= words:
+        return None
+    word = str(err.token)
+    close = [_TYPE_SYNONYMS[word]] if word in _TYPE_SYNONYMS else difflib.get_close_matches(word, TYPE_WORDS, n=1, cutoff=0.6)
+    guess = f"; did you mean `{close[0]}`?" if close else ""
+    return f"`{err.token}` is not an answer type{guess} (the types are {', '.join(TYPE_WORDS)})"
+
+
+def unclosed_bracket(text: str, end: int) -> tuple[int, str] | None:
+    """Offset and character of the last `(` or `{` opened before `end` and not closed
+    (brackets inside quoted texts and comments do not count)."""
+    stack: list[tuple[int, str]] = []
+    i, in_string = 0, False
+    while i < min(end, len(text)):
+        ch = text[i]
+        if in_string:
+            if ch == "\\":
+                i += 1
+            elif ch == '"' or ch == "\n":
+                in_string = False
+        elif ch == '"':
+            in_string = True
+        elif ch == "#":
+            while i < len(text) and text[i] != "\n":
+                i += 1
+            continue
+        elif ch in "({":
+            stack.append((i, ch))
+        elif ch in ")}" and stack and "({"[")}".index(ch)] == stack[-1][1]:
+            stack.pop()
+        i += 1
+    return stack[-1] if stack else None
+
+
+def _line_col(text: str, offset: int) -> tuple[int, int]:
+    line = text.count("\n", 0, offset) + 1
+    return line, offset - (text.rfind("\n", 0, offset) + 1) + 1
 
 
 @dataclass
@@ -132,22 +231,39 @@ def _last_line(text: str) -> tuple[int, int]:
 
 def _error_to_diagnostic(err: Exception, text: str, file: str) -> tuple[Diagnostic, int]:
     line, column = getattr(err, "line", -1), getattr(err, "column", -1)
-    if not isinstance(line, int) or line < 1:
+    token = getattr(err, "token", None)
+    at_end = isinstance(err, UnexpectedEOF) or getattr(token, "type", "") == "$END"
+    if not isinstance(line, int) or line < 1 or at_end:
+        # The end of the input has no position of its own: it is the end of the file.
         line, column = _last_line(text)
-    if isinstance(err, UnexpectedCharacters):
+    expected = set(getattr(err, "expected", None) or getattr(err, "allowed", None) or ())
+    offset = len(text) if at_end else getattr(err, "pos_in_stream", None)
+    if not isinstance(offset, int) or offset < 0:
+        offset = len(text)
+    opened = unclosed_bracket(text, offset) if ("RPAR" in expected or "RBRACE" in expected or at_end) else None
+    if opened is not None:
+        pos, ch = opened
+        line, column = _line_col(text, pos)
+        close = ")" if ch == "(" else "}"
+        message = f"this `{ch}` is never closed; add `{close}` before the end of the statement"
+    elif isinstance(err, UnexpectedCharacters):
         char = text[err.pos_in_stream] if 0 <= err.pos_in_stream < len(text) else "?"
-        message = f"unexpected character `{char}`"
-        if err.allowed:
-            message += f"; expected {_describe(set(err.allowed))}"
+        rest = text[err.pos_in_stream + 1 :].split("\n", 1)[0]
+        if char == '"' and '"' not in rest:
+            message = 'this text has no closing quote; end it with `"` on the same line'
+        elif "STRING" in expected and (char.isalnum() or char in "?_"):
+            message = 'the question text must be in double quotes: "..."'
+        else:
+            message = f"unexpected character `{char}`"
+            if err.allowed:
+                message += f"; expected {_describe(set(err.allowed))}"
     elif isinstance(err, UnexpectedEOF):
         message = f"the file ends too early; expected {_describe(set(err.expected))}"
+    elif isinstance(err, UnexpectedToken) and err.token.type in ("RPAR", "RBRACE"):
+        message = f"this `{err.token}` closes nothing; remove it, or add the opening bracket"
     elif isinstance(err, UnexpectedToken):
-        hint = None
-        try:
-            hint = err.match_examples(spec_parser().parse, _EXAMPLES, use_accepts=True)
-        except Exception:  # noqa: BLE001 - a hint is optional; never fail on it
-            hint = None
         message = f"unexpected {_found(err.token)}; expected {_describe(set(err.expected))}"
+        hint = _type_word_hint(err) or _hint(err)
         if hint:
             message = f"{hint} ({message})"
     elif isinstance(err, DedentError):
@@ -210,10 +326,12 @@ def parse_text(text: str, file: str = "<spec>") -> ParseResult:
         except (UnexpectedInput, DedentError) as err:
             if isinstance(err, DedentError):
                 bad = _dedent_line("\n".join(lines), err)
+                raw = lines[bad - 1] if 0 < bad <= len(lines) else ""
+                col = len(raw) - len(raw.lstrip(" \t")) + 1
                 diag = Diagnostic(
                     check="syntax-error",
                     severity=Severity.error,
-                    span=Span(file=file, line=bad, column=1, end_line=bad, end_column=1),
+                    span=Span(file=file, line=bad, column=col, end_line=bad, end_column=col),
                     message="this line's indentation does not match any enclosing block",
                 )
             else:

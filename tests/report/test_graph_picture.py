@@ -15,7 +15,7 @@ from logiccheck.cli.main import cli
 from logiccheck.diagnostics import Diagnostic, Severity, Span
 from logiccheck.graph.deps import dependency_graph
 from logiccheck.load import load_file, load_text
-from logiccheck.report.graph_data import flow_picture
+from logiccheck.report.graph_flow import flow_picture
 from logiccheck.report.graph_picture import BOX_STYLE, figure_bytes, routing_pictures
 from tests.report.specgen import sixty_item_spec
 
@@ -69,23 +69,39 @@ def test_bikeshare_picture_content_matches_the_example() -> None:
     # condition reads which item.
     q = load_file("specs/bikeshare.qlc").questionnaire
     pic = flow_picture(q)
-    assert [g.id for g in pic.groups][:5] == ["_top", "section:screening", "section:riding", "section:lapsed",
-                                              "section:overall"]
+    titles = [g.title.split(" · ")[0] for g in pic.groups]
+    assert titles == ["Sample variables (known before the interview)", "screening", "riding", "lapsed", "overall"]
+    ids = {name: pic.by_name(name).id for name in ("purpose", "purpose_other", "used", "trips", "praise", "frequent")}
     edges = {(e.source, e.target, e.via) for e in pic.edges}
-    assert ("purpose", "purpose_other", "condition") in edges
-    assert ("used", "section:riding", "context") in edges
-    assert ("used", "section:lapsed", "context") in edges
-    assert ("trips", "praise", "pipe") in edges
-    assert ("frequent", "praise", "condition") in edges
-    assert pic.nodes["used"].kind == "gate" and pic.nodes["ebike"].kind == "gate"
-    assert pic.nodes["age"].kind == "item" and pic.nodes["dock_app"].kind == "row"
+    assert (ids["purpose"], ids["purpose_other"], "condition") in edges
+    assert (ids["used"], pic.band("riding").id, "context") in edges
+    assert (ids["used"], pic.band("lapsed").id, "context") in edges
+    assert (ids["trips"], ids["praise"], "pipe") in edges
+    assert (ids["frequent"], ids["praise"], "condition") in edges
+    assert pic.by_name("used").kind == "gate" and pic.by_name("ebike").kind == "gate"
+    assert pic.by_name("age").kind == "item" and pic.by_name("dock_app").kind == "row"
+    assert pic.by_name("age").key and not pic.by_name("used").key
     assert any(node.kind == "stop" and node.name == "underage" for node in pic.nodes.values())
-    # Every read in the networkx dependency graph is drawn (section reads go to the band).
+    assert [pic.nodes[i].name for i in pic.band("riding").nodes][:3] == ["freq", "trips", "purpose"]
+    # Every read in the networkx dependency graph (checks aside) is drawn; reads by a
+    # section's condition go to its band.
     graph = dependency_graph(q)
-    drawn = {(e.source, e.target) for e in pic.edges}
+    drawn = {(pic.nodes[e.source].name, e.target) for e in pic.edges}
     for reader, source in graph.edges():
-        band = f"section:{q.symbols[reader].section.name}" if reader in q.symbols and q.symbols[reader].section else None
-        assert (source, reader) in drawn or (source, band) in drawn, (source, reader)
+        entry = graph.nodes[reader]["entry"]
+        if entry.kind == "check":
+            continue
+        reader_ids = {n.id for n in pic.nodes.values() if n.line == entry.span.line}
+        band = pic.band(entry.section.name).id if entry.section is not None else None
+        assert any((source, t) in drawn for t in reader_ids | {band}), (source, reader)
+
+
+def test_skips_point_where_they_land() -> None:
+    q = load_text(sixty_item_spec(), "sixty.qlc").questionnaire
+    pic = flow_picture(q)
+    skip = next(n for n in pic.nodes.values() if n.kind == "skip")
+    target = pic.by_name(skip.name)
+    assert (skip.id, target.id, "skip") in {(e.source, e.target, e.via) for e in pic.edges}
 
 
 def test_gates_and_stops_are_drawn_differently() -> None:
@@ -104,8 +120,9 @@ def test_unreachable_items_are_marked() -> None:
     other = Diagnostic(check="unknown-name", severity=Severity.error,
                        span=Span(file=q.file, line=1, column=1), message="x", item="age")
     pic = flow_picture(q, [diag, other])
-    assert pic.nodes["range_ok"].unreachable
-    assert not pic.nodes["age"].unreachable
+    assert pic.by_name("range_ok").unreachable
+    assert not pic.by_name("age").unreachable
+    assert sum(n.unreachable for n in pic.nodes.values()) == 1
     svg = figure_bytes(routing_pictures(q, [diag])[0].figure, "svg").decode()
     assert "UNREACHABLE" in svg and "unreachable" in svg  # box tag and legend entry
 
@@ -114,10 +131,10 @@ def test_large_specs_fall_back_to_one_picture_per_section() -> None:
     q = load_file("specs/bikeshare.qlc").questionnaire
     pictures = routing_pictures(q, max_nodes=5)
     names = [p.name for p in pictures]
-    assert names[:5] == ["top", "screening", "riding", "lapsed", "overall"]
+    assert names == ["top-0", "screening", "riding", "lapsed", "overall"]
     riding = pictures[2]
     # the inputs from other sections are drawn in a band of their own
-    assert "used" in riding.boxes and "freq" in riding.boxes and "age" not in riding.boxes
+    assert {"n_used", "n_freq"} <= set(riding.boxes) and "n_age" not in riding.boxes
 
 
 def test_graph_command_svg_png_and_errors(tmp_path) -> None:
@@ -128,11 +145,12 @@ def test_graph_command_svg_png_and_errors(tmp_path) -> None:
     result = runner.invoke(cli, ["graph", "specs/bikeshare.qlc", "--format", "png", "--out", str(out)])
     assert result.exit_code == 0
     assert out.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
-    result = runner.invoke(cli, ["graph", "specs/bikeshare.qlc", "--max-boxes", "5", "--out", str(tmp_path / "r.svg")])
+    result = runner.invoke(cli, ["graph", "specs/bikeshare.qlc", "--format", "svg", "--max-boxes", "5", "--out",
+                                 str(tmp_path / "r.svg")])
     assert result.exit_code == 0 and (tmp_path / "r.riding.svg").exists()
-    result = runner.invoke(cli, ["graph", "specs/bikeshare.qlc", "--max-boxes", "5"])
+    result = runner.invoke(cli, ["graph", "specs/bikeshare.qlc", "--format", "svg", "--max-boxes", "5"])
     assert result.exit_code == 2 and "--out" in result.output
-    result = runner.invoke(cli, ["graph", str(tmp_path / "missing.qlc")])
+    result = runner.invoke(cli, ["graph", str(tmp_path / "missing.qlc"), "--format", "svg"])
     assert result.exit_code == 2 and "no such file" in result.output
 
 
@@ -141,7 +159,7 @@ def test_missing_report_extra_says_how_to_install(monkeypatch) -> None:
 
     real = importlib.util.find_spec
     monkeypatch.setattr(importlib.util, "find_spec", lambda name, *a: None if name == "matplotlib" else real(name, *a))
-    result = CliRunner().invoke(cli, ["graph", "specs/bikeshare.qlc"])
+    result = CliRunner().invoke(cli, ["graph", "specs/bikeshare.qlc", "--format", "png"])
     assert result.exit_code == 2
     assert 'pip install "logiccheck[report]"' in result.output
     assert len(result.output.strip().splitlines()) == 1

@@ -1,0 +1,65 @@
+"""`logiccheck check SPEC --data EXPORT`: lint, then validate; the main job."""
+
+from __future__ import annotations
+
+import json
+import sys
+
+import click
+
+from logiccheck.cli.common import color_option, exit_status, fail_on_option, make_console
+from logiccheck.cli.lint import emit, lint_files
+from logiccheck.cli.validate import (
+    data_options,
+    load_data_mapping,
+    load_spec,
+    run_validation,
+    spec_note,
+    validation_status,
+)
+from logiccheck.diagnostics import count_by_severity
+from logiccheck.report.data_text import render_validation
+
+
+@click.command("check")
+@click.argument("spec", type=click.Path(dir_okay=False))
+@data_options
+@click.option("--format", "fmt", type=click.Choice(["text", "json"]), default="text", show_default=True)
+@click.option("--no-solver", is_flag=True, help="Skip the routing analysis (static checks only).")
+@fail_on_option
+@color_option
+def check_command(
+    spec: str,
+    data: str,
+    map_file: str | None,
+    frame: str | None,
+    encoding: str | None,
+    show: int,
+    chunk_rows: int,
+    fmt: str,
+    no_solver: bool,
+    fail_on: str | None,
+    color: str,
+) -> None:
+    """Lint the spec, then validate the export against it; exit status is the worse of the two."""
+    diagnostics, sources = lint_files([spec], solver=not no_solver)
+    loaded = load_spec(spec)
+    note = spec_note(loaded)
+    mapping = load_data_mapping(map_file, frame)
+    result = run_validation(loaded, data, mapping, encoding, chunk_rows, color)
+    if fmt == "json":
+        payload = {
+            "lint": {"diagnostics": [d.to_json() for d in diagnostics], "summary": count_by_severity(diagnostics)},
+            "validate": result.to_json(),
+        }
+        click.echo(json.dumps(payload, indent=2, ensure_ascii=False))
+    else:
+        console = make_console(color)
+        console.rule("[bold]lint[/bold]", align="left")
+        emit(diagnostics, [spec], "text", color, sources)
+        console.print()
+        console.rule("[bold]validate[/bold]", align="left")
+        render_validation(console, result, show=show)
+    if note:
+        click.echo(f"logiccheck: note: {note}", err=True)
+    sys.exit(max(exit_status(diagnostics, fail_on), validation_status(result, fail_on)))

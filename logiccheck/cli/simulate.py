@@ -1,0 +1,57 @@
+"""`logiccheck simulate SPEC -n N --seed S [--faults RATE] [--out FILE]`"""
+
+from __future__ import annotations
+
+import io
+import os
+import sys
+import tempfile
+from pathlib import Path
+
+import click
+import pyarrow.csv as pacsv
+
+from logiccheck.cli.common import fail
+from logiccheck.cli.validate import load_spec, spec_note
+from logiccheck.data.simulate import simulate, write_csv, write_faults
+
+
+def faults_path(out: Path) -> Path:
+    return out.with_name(out.name + ".faults.csv") if out.suffix != ".csv" else out.with_suffix(".faults.csv")
+
+
+@click.command("simulate")
+@click.argument("spec", type=click.Path(dir_okay=False))
+@click.option("-n", "rows", type=click.IntRange(0), default=100, show_default=True, help="Respondents to generate.")
+@click.option("--seed", type=int, default=0, show_default=True, help="Random seed: the same seed gives the same export.")
+@click.option("--faults", type=click.FloatRange(0, 1), default=0.0, show_default=True, help="Share of respondents given one planted fault.")
+@click.option("--out", "out", type=click.Path(dir_okay=False), help="Write the export here (.csv or .parquet) and its faults beside it as FILE.faults.csv; default: CSV to standard output.")
+def simulate_command(spec: str, rows: int, seed: int, faults: float, out: str | None) -> None:
+    """Write a synthetic export that follows the routing, optionally with planted faults."""
+    loaded = load_spec(spec)
+    note = spec_note(loaded)
+    if note:
+        click.echo(f"logiccheck: note: {note}", err=True)
+    sim = simulate(loaded.questionnaire, rows, seed=seed, faults=faults)
+    if out is None:
+        buf = io.BytesIO()
+        pacsv.write_csv(sim.table, buf, write_options=pacsv.WriteOptions(quoting_style="needed"))
+        sys.stdout.buffer.write(buf.getvalue())
+        if sim.faults:
+            click.echo(f"logiccheck: note: {len(sim.faults)} faults planted; give --out FILE to get them listed in FILE.faults.csv", err=True)
+        return
+    path = Path(out)
+    if not path.parent.exists():
+        fail(f"{out}: folder {path.parent} does not exist")
+    if path.suffix.lower() in (".parquet", ".pq"):
+        import pyarrow.parquet as pq
+
+        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", dir=path.parent)
+        os.close(fd)
+        pq.write_table(sim.table, tmp)
+        os.replace(tmp, path)
+    else:
+        write_csv(sim.table, path)
+    side = faults_path(path)
+    write_faults(sim.faults, side)
+    click.echo(f"wrote {path} ({rows} respondents) and {side} ({len(sim.faults)} faults)", err=True)

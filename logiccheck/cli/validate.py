@@ -1,0 +1,161 @@
+"""`logiccheck validate SPEC --data EXPORT ...`"""
+
+from __future__ import annotations
+
+import sys
+import time
+from pathlib import Path
+
+import click
+from rich.progress import BarColumn, Progress, SpinnerColumn, TextColumn, TimeElapsedColumn
+
+from logiccheck.cli.common import color_option, fail, fail_on_option, make_console
+from logiccheck.data import DataMapping, DataReadError, MappingError, ValidationResult, load_mapping, validate
+from logiccheck.data.readers import DEFAULT_CHUNK_ROWS
+from logiccheck.diagnostics import Severity
+from logiccheck.load import Loaded, SpecReadError, load_file
+from logiccheck.report.data_csv import items_csv, write_csv_dir
+from logiccheck.report.data_json import validation_json
+from logiccheck.report.data_text import render_validation
+
+DATA_FORMATS = ["text", "json", "csv", "html"]
+PROGRESS_AFTER = 1.5  # seconds before a progress bar appears
+
+
+def data_options(fn):  # type: ignore[no-untyped-def]
+    """Options `validate` and `check` share."""
+    for option in reversed(
+        [
+            click.option("--data", "data", required=True, type=click.Path(dir_okay=False), help="The export: .csv, .tsv, .xlsx, .parquet or .jsonl."),
+            click.option("--map", "map_file", type=click.Path(dir_okay=False), help="Data mapping (TOML; keys top-level or under [data])."),
+            click.option("--frame", "frame", type=click.Path(dir_okay=False), help="Sample frame CSV (column id, optionally email)."),
+            click.option("--encoding", default=None, help="Text encoding of a CSV/TSV/JSON Lines export [default: UTF-8, with or without BOM]."),
+            click.option("--show", default=5, show_default=True, type=click.IntRange(0), help="Findings shown per check in terminal output."),
+            click.option("--chunk-rows", default=DEFAULT_CHUNK_ROWS, hidden=True, type=click.IntRange(1)),
+        ]
+    ):
+        fn = option(fn)
+    return fn
+
+
+def load_data_mapping(map_file: str | None, frame: str | None) -> DataMapping:
+    try:
+        mapping = load_mapping(map_file) if map_file else DataMapping()
+    except MappingError as err:
+        fail(str(err))
+    if frame is not None:
+        if not Path(frame).is_file():
+            fail(f"{frame}: no such sample frame file; give a CSV with an `id` column")
+        mapping = mapping.model_copy(update={"frame": frame})
+    return mapping
+
+
+def run_validation(
+    loaded: Loaded, data: str, mapping: DataMapping, encoding: str | None, chunk_rows: int, color: str
+) -> ValidationResult:
+    """Validate with a progress bar on stderr once the run takes more than a moment."""
+    err_console = make_console(color, stderr=True)
+    started = time.monotonic()
+    state: dict[str, object] = {}
+
+    def progress(rows: int, _bytes: int) -> None:
+        if "bar" not in state:
+            if time.monotonic() - started < PROGRESS_AFTER or not err_console.is_terminal:
+                return
+            bar = Progress(
+                SpinnerColumn(),
+                TextColumn("validating {task.fields[name]}"),
+                BarColumn(),
+                TextColumn("{task.completed:,.0f} rows"),
+                TimeElapsedColumn(),
+                console=err_console,
+                transient=True,
+            )
+            bar.start()
+            state["bar"] = bar
+            state["task"] = bar.add_task("validate", total=None, name=Path(data).name)
+        bar = state["bar"]
+        bar.update(state["task"], completed=rows)  # type: ignore[attr-defined]
+
+    try:
+        return validate(
+            loaded.questionnaire, data, mapping, encoding=encoding, chunk_rows=chunk_rows, keep_cells=False, progress=progress
+        )
+    except DataReadError as err:
+        fail(str(err))
+    finally:
+        if "bar" in state:
+            state["bar"].stop()  # type: ignore[attr-defined]
+
+
+def emit_validation(result: ValidationResult, fmt: str, color: str, show: int, out: str | None) -> None:
+    if fmt == "json":
+        click.echo(validation_json(result))
+    elif fmt == "csv":
+        if out:
+            paths = write_csv_dir(result, out)
+            click.echo("wrote " + " and ".join(str(p) for p in paths), err=True)
+        else:
+            click.echo(items_csv(result), nl=False)
+    else:
+        render_validation(make_console(color), result, show=show)
+
+
+def validation_status(result: ValidationResult, fail_on: str | None) -> int:
+    return 1 if result.worst_at_least(Severity(fail_on or "error")) else 0
+
+
+def load_spec(spec: str) -> Loaded:
+    try:
+        return load_file(spec)
+    except SpecReadError as err:
+        fail(str(err))
+
+
+def spec_note(loaded: Loaded) -> str | None:
+    """None if the spec is fine to validate with; a note if it has errors but is usable."""
+    q = loaded.questionnaire
+    if not q.items():
+        fail(f"{q.file}: the spec defines no items, so there is nothing to validate; run `logiccheck lint {q.file}`")
+    errors = len(loaded.syntax) + len([p for p in q.problems])
+    if errors:
+        return f"the spec has {errors} problem(s); validation used the statements that resolved (run `logiccheck lint {q.file}`)"
+    return None
+
+
+@click.command("validate")
+@click.argument("spec", type=click.Path(dir_okay=False))
+@data_options
+@click.option("--format", "fmt", type=click.Choice(DATA_FORMATS), default="text", show_default=True)
+@click.option("--out", "out", type=click.Path(), help="With --format csv: write items.csv and findings.csv in this folder; with --format html: the report file.")
+@fail_on_option
+@color_option
+def validate_command(
+    spec: str,
+    data: str,
+    map_file: str | None,
+    frame: str | None,
+    encoding: str | None,
+    show: int,
+    chunk_rows: int,
+    fmt: str,
+    out: str | None,
+    fail_on: str | None,
+    color: str,
+) -> None:
+    """Check an export against the spec's routing: off-route answers, missing, invalid values."""
+    loaded = load_spec(spec)
+    note = spec_note(loaded)
+    mapping = load_data_mapping(map_file, frame)
+    result = run_validation(loaded, data, mapping, encoding, chunk_rows, color)
+    if note:
+        click.echo(f"logiccheck: note: {note}", err=True)
+    if fmt == "html":
+        from logiccheck.cli.report import write_html
+
+        path = write_html(loaded, out, result, mapping)
+        if out:
+            click.echo(f"logiccheck: wrote {path}", err=True)
+    else:
+        emit_validation(result, fmt, color, show, out)
+    sys.exit(validation_status(result, fail_on))

@@ -1,0 +1,82 @@
+"""Findings: one record per problem cell, built in blocks of index arrays.
+
+A block holds one check, one item, one message template and the rows it applies to;
+`Finding` records are made from blocks only when someone asks for them, so an export
+with a million problem cells costs arrays, not a million objects, until it is printed.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from pydantic import BaseModel
+
+from logiccheck.diagnostics import Severity
+
+
+class Finding(BaseModel):
+    """One data finding: which check, how serious, which respondent and item, and why."""
+
+    check: str
+    severity: Severity
+    respondent: str | None = None  # the respondent id, as text
+    row: int | None = None  # 1-based data row (the header is row 0)
+    item: str | None = None
+    value: str | None = None  # the cell as the export has it
+    message: str
+
+    def to_json(self) -> dict[str, object]:
+        """DESIGN §5's fields, plus row and value."""
+        return {
+            "check": self.check,
+            "severity": self.severity.value,
+            "respondent": self.respondent,
+            "item": self.item,
+            "message": self.message,
+            "row": self.row,
+            "value": self.value,
+        }
+
+
+@dataclass
+class FindingBlock:
+    """Findings sharing check, severity, item and a message template (`{value}` filled in)."""
+
+    check: str
+    severity: Severity
+    item: str | None
+    message: str
+    rows: np.ndarray  # 0-based global data rows; empty for a file-level finding
+    ids: np.ndarray | None = None  # respondent ids (object array of str), aligned with rows
+    values: list[str] | None = None  # cell texts, aligned with rows
+
+    def head(self, k: int) -> list[Finding]:
+        """The first `k` records only."""
+        return self.records(limit=k)
+
+    def records(self, limit: int | None = None) -> list[Finding]:
+        if self.rows.size == 0:
+            return [Finding(check=self.check, severity=self.severity, item=self.item, message=self.message)]
+        out = []
+        templated = "{value}" in self.message
+        rows = self.rows if limit is None else self.rows[:limit]
+        for i, row in enumerate(rows.tolist()):
+            value = self.values[i] if self.values is not None else None
+            message = self.message.replace("{value}", value or "") if templated else self.message
+            out.append(
+                Finding(
+                    check=self.check,
+                    severity=self.severity,
+                    respondent=str(self.ids[i]) if self.ids is not None else None,
+                    row=row + 1,
+                    item=self.item,
+                    value=value,
+                    message=message,
+                )
+            )
+        return out
+
+
+def count_blocks(blocks: list[FindingBlock]) -> int:
+    return sum(b.rows.size or 1 for b in blocks)

@@ -1,0 +1,106 @@
+"""`ValidationResult`: the one object every data reporter, the cleaner and notebooks read."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+import pandas as pd
+
+from logiccheck.data.findings import Finding, FindingBlock, count_blocks
+from logiccheck.diagnostics import Severity
+
+TABLE_COLUMNS = ["item", "expected", "answered", "out_of_path", "missing_on_path", "invalid", "over_expected"]
+
+
+@dataclass
+class ValidationResult:
+    """Everything validation learned about one export.
+
+    `due`, `has_value` and `valid` are respondents × `items` Boolean arrays (None when
+    validation ran with `keep_cells=False`, as the command line does); `has_value` is the
+    export's own (answered, valid or not); `due` is the routing's, with cascade.
+    """
+
+    respondents: int
+    ids: np.ndarray  # respondent ids as text, in data-row order
+    items: list[str]  # the per-item table's items, questionnaire order
+    table: pd.DataFrame
+    blocks: list[FindingBlock]
+    stop: np.ndarray  # the stop that fired per respondent ("" if none)
+    disposition: np.ndarray  # per respondent
+    dispositions: dict[str, int]
+    measures: pd.DataFrame  # per respondent: answered, due, answered_share, gates_due, gates_answered, stop
+    due: np.ndarray | None = None
+    has_value: np.ndarray | None = None
+    valid: np.ndarray | None = None
+    frame: pd.DataFrame | None = None  # the typed frame (values where valid, NaN otherwise)
+    missing_columns: list[tuple[str, str]] = field(default_factory=list)
+    unknown_columns: list[str] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)
+    source: str | None = None
+    _findings: list[Finding] | None = field(default=None, repr=False)
+
+    @property
+    def findings(self) -> list[Finding]:
+        """Every finding, materialised once (file-level first, then by row)."""
+        if self._findings is None:
+            out: list[Finding] = []
+            for block in self.blocks:
+                out.extend(block.records())
+            out.sort(key=lambda f: (f.row is not None, f.row or 0))
+            self._findings = out
+        return self._findings
+
+    @property
+    def finding_count(self) -> int:
+        return count_blocks(self.blocks)
+
+    def counts_by_check(self) -> dict[tuple[str, str], int]:
+        """(check, severity) → number of findings, without materialising them."""
+        out: dict[tuple[str, str], int] = {}
+        for b in self.blocks:
+            key = (b.check, b.severity.value)
+            out[key] = out.get(key, 0) + (b.rows.size or 1)
+        return out
+
+    def severity_counts(self) -> dict[str, int]:
+        counts = {"error": 0, "warning": 0, "info": 0}
+        for (_, sev), k in self.counts_by_check().items():
+            counts[sev] += k
+        return counts
+
+    def worst_at_least(self, level: Severity) -> bool:
+        return any(b.severity.at_least(level) for b in self.blocks)
+
+    def item_states(self, item: str) -> pd.DataFrame:
+        """Per respondent for one item: due, has_value, valid (needs keep_cells)."""
+        if self.due is None:
+            raise ValueError("cell arrays were not kept; validate with keep_cells=True")
+        j = self.items.index(item)
+        return pd.DataFrame(
+            {"id": self.ids, "due": self.due[:, j], "has_value": self.has_value[:, j], "valid": self.valid[:, j]}
+        )
+
+    def to_json(self) -> dict[str, Any]:
+        """DESIGN §5: respondents, items, findings, dispositions."""
+        items = [
+            {
+                "item": r.item,
+                "expected": int(r.expected),
+                "answered": int(r.answered),
+                "out_of_path": int(r.out_of_path),
+                "missing_on_path": int(r.missing_on_path),
+                "invalid": int(r.invalid),
+                "over_expected": bool(r.over_expected),
+            }
+            for r in self.table.itertuples(index=False)
+        ]
+        return {
+            "respondents": int(self.respondents),
+            "items": items,
+            "findings": [f.to_json() for f in self.findings],
+            "dispositions": dict(self.dispositions),
+            "summary": self.severity_counts(),
+        }

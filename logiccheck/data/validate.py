@@ -1,0 +1,310 @@
+"""Validate an export against a questionnaire: read in chunks, evaluate, collect findings."""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Iterable
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pyarrow as pa
+
+from logiccheck.data import causes
+from logiccheck.data.dispositions import answered_share, default_dispositions, tally
+from logiccheck.data.evaluate import ChunkState, Evaluator
+from logiccheck.data.findings import FindingBlock
+from logiccheck.data.frame import REASON_TEXT, Cells, Layout, NamePlan, cell_texts, plan_layout, type_cells
+from logiccheck.data.mapping import DataMapping
+from logiccheck.data.readers import DEFAULT_CHUNK_ROWS, open_export
+from logiccheck.data.result import TABLE_COLUMNS, ValidationResult
+from logiccheck.diagnostics import Severity
+from logiccheck.model.questionnaire import Questionnaire
+
+Progress = Callable[[int, int], None]  # (rows done, bytes done)
+
+
+def _sev(name: str) -> Severity:
+    from logiccheck.checks.registry import default_severity
+
+    return default_severity(name)
+
+
+def validate(
+    q: Questionnaire,
+    source: str | Path | pd.DataFrame | pa.Table,
+    mapping: DataMapping | None = None,
+    *,
+    encoding: str | None = None,
+    chunk_rows: int = DEFAULT_CHUNK_ROWS,
+    keep_cells: bool = True,
+    stream: bool | None = None,
+    progress: Progress | None = None,
+) -> ValidationResult:
+    """Run the routing on an export. `source` is a file path, a DataFrame or an Arrow table.
+
+    Results do not depend on `chunk_rows`: respondents are independent of each other.
+    Raises `DataReadError` for an export that cannot be read.
+    """
+    mapping = mapping or DataMapping()
+    if isinstance(source, (str, Path)):
+        export = open_export(source, encoding=encoding, chunk_rows=chunk_rows, stream=stream)
+        header, chunks, name = export.columns, export.chunks, str(export.path)
+    else:
+        table = source if isinstance(source, pa.Table) else _table_from_frame(source)
+        header = list(table.column_names)
+        chunks = (table.slice(s, chunk_rows) for s in range(0, max(table.num_rows, 1), chunk_rows))
+        name = None
+    return Validator(q, mapping, header, keep_cells=keep_cells).run(chunks, name, progress)
+
+
+def validate_frame(q: Questionnaire, frame: pd.DataFrame, mapping: DataMapping | None = None) -> ValidationResult:
+    return validate(q, frame, mapping)
+
+
+def _table_from_frame(frame: pd.DataFrame) -> pa.Table:
+    """A DataFrame as text columns (numbers keep their own type), blanks as null."""
+    cols = {}
+    for c in frame.columns:
+        s = frame[c]
+        if pd.api.types.is_numeric_dtype(s) or pd.api.types.is_bool_dtype(s):
+            cols[str(c)] = pa.array(s.to_numpy(dtype=np.float64, na_value=np.nan), from_pandas=True)
+        else:
+            vals = [None if (v is None or (isinstance(v, float) and np.isnan(v)) or v == "") else str(v) for v in s]
+            cols[str(c)] = pa.array(vals, type=pa.string())
+    return pa.table(cols)
+
+
+class Validator:
+    def __init__(self, q: Questionnaire, mapping: DataMapping, header: list[str], *, keep_cells: bool) -> None:
+        self.q = q
+        self.mapping = mapping
+        self.layout: Layout = plan_layout(q, mapping, header)
+        self.evaluator = Evaluator(q, self.layout)
+        self.keep = keep_cells
+        self.items = [e.name for e in q.items() if e.stmt.type.kind != "note" and e.name in self.layout.plans]
+        self.gates = np.array([q.symbols[i].stmt.flags.gate for i in self.items], dtype=bool)
+        self.stop_names = [e.name for e in q.entries if e.kind == "stop"]
+        self.stop_index = {e.index: e.name for e in q.entries if e.kind == "stop"}
+
+    def run(self, chunks: Iterable[pa.Table], source: str | None, progress: Progress | None) -> ValidationResult:
+        _q, layout = self.q, self.layout
+        k = len(self.items)
+        counts = np.zeros((k, 5), dtype=np.int64)
+        blocks: list[FindingBlock] = self._file_blocks()
+        ids: list[np.ndarray] = []
+        stops: list[np.ndarray] = []
+        measures: list[np.ndarray] = []
+        kept: dict[str, list[np.ndarray]] = {"due": [], "has": [], "valid": []}
+        frames: list[pd.DataFrame] = []
+        offset = 0
+        for table in chunks:
+            rows = table.num_rows
+            cells = {name: type_cells(plan, table, self.mapping) for name, plan in layout.plans.items()}
+            state = self.evaluator.run(cells, rows)
+            chunk_ids = self._ids(table, offset)
+            due = np.zeros((rows, k), dtype=bool)
+            has = np.zeros((rows, k), dtype=bool)
+            val = np.zeros((rows, k), dtype=bool)
+            for j, item in enumerate(self.items):
+                c = cells[item]
+                d = state.env.due[item]
+                due[:, j], has[:, j], val[:, j] = d, c.present, c.valid
+                counts[j] += (
+                    int(d.sum()),
+                    int(c.present.sum()),
+                    int((c.present & ~d).sum()),
+                    int((d & ~c.present).sum()),
+                    int((c.present & ~c.valid).sum()),
+                )
+                blocks += self._item_blocks(item, c, d, state, table, offset, chunk_ids)
+            blocks += self._check_blocks(state, offset, chunk_ids)
+            stop = np.array(["", *self.stop_names], dtype=object)[
+                np.searchsorted([-1, *self.stop_index], state.stop_at)
+            ] if self.stop_names else np.full(rows, "", dtype=object)
+            answered = (due & has).sum(axis=1)
+            n_due = due.sum(axis=1)
+            gates_due = due[:, self.gates].sum(axis=1)
+            gates_answered = (due & val)[:, self.gates].sum(axis=1)
+            measures.append(np.column_stack([answered, n_due, gates_due, gates_answered]))
+            ids.append(chunk_ids)
+            stops.append(stop)
+            if self.keep:
+                kept["due"].append(due)
+                kept["has"].append(has)
+                kept["valid"].append(val)
+                frames.append(self._typed(cells, chunk_ids, table))
+            offset += rows
+            if progress is not None:
+                progress(offset, 0)
+        all_ids = np.concatenate(ids) if ids else np.array([], dtype=object)
+        stop_all = np.concatenate(stops) if stops else np.array([], dtype=object)
+        m = np.concatenate(measures) if measures else np.zeros((0, 4), dtype=np.int64)
+        share = answered_share(m[:, 0], m[:, 1])
+        disposition = default_dispositions(share, stop_all)
+        table = pd.DataFrame(
+            {
+                "item": self.items,
+                "expected": counts[:, 0],
+                "answered": counts[:, 1],
+                "out_of_path": counts[:, 2],
+                "missing_on_path": counts[:, 3],
+                "invalid": counts[:, 4],
+            }
+        )
+        table["over_expected"] = table["answered"] > table["expected"]
+        table = table[TABLE_COLUMNS]
+        measure_frame = pd.DataFrame(
+            {
+                "id": all_ids,
+                "answered": m[:, 0],
+                "due": m[:, 1],
+                "answered_share": share,
+                "gates_due": m[:, 2],
+                "gates_answered": m[:, 3],
+                "stop": stop_all,
+                "disposition": disposition,
+            }
+        )
+        result = ValidationResult(
+            respondents=offset,
+            ids=all_ids,
+            items=self.items,
+            table=table,
+            blocks=blocks,
+            stop=stop_all,
+            disposition=disposition,
+            dispositions=tally(disposition, self.stop_names),
+            measures=measure_frame,
+            missing_columns=list(layout.missing),
+            unknown_columns=list(layout.unknown),
+            source=source,
+        )
+        if self.keep:
+            result.due = np.concatenate(kept["due"]) if kept["due"] else np.zeros((0, k), dtype=bool)
+            result.has_value = np.concatenate(kept["has"]) if kept["has"] else np.zeros((0, k), dtype=bool)
+            result.valid = np.concatenate(kept["valid"]) if kept["valid"] else np.zeros((0, k), dtype=bool)
+            result.frame = pd.concat(frames, ignore_index=True) if frames else None
+        return result
+
+    # ------------------------------------------------------------ pieces
+    def _ids(self, table: pa.Table, offset: int) -> np.ndarray:
+        col = self.layout.id_column
+        if col is None:
+            return np.array([str(offset + i + 1) for i in range(table.num_rows)], dtype=object)
+        vals = table.column(col).to_pylist()
+        return np.array(["" if v is None else (str(int(v)) if isinstance(v, float) and v.is_integer() else str(v)) for v in vals], dtype=object)
+
+    def _file_blocks(self) -> list[FindingBlock]:
+        out = []
+        empty = np.array([], dtype=np.int64)
+        for name, col in self.layout.missing:
+            if name == "id":
+                msg = f"the export has no respondent id column `{col}`; rows are numbered instead (set `id` in the mapping)"
+                out.append(FindingBlock("missing-column", _sev("missing-column"), None, msg, empty))
+            else:
+                msg = f"the export has no column `{col}` for `{name}`; every answer to it counts as missing"
+                out.append(FindingBlock("missing-column", _sev("missing-column"), name, msg, empty))
+        for col in self.layout.unknown:
+            msg = f"column `{col}` is not in the spec (no item, grid row or sample variable of that name); it is ignored"
+            out.append(FindingBlock("unknown-column", _sev("unknown-column"), None, msg, empty))
+        return out
+
+    def _item_blocks(
+        self,
+        item: str,
+        c: Cells,
+        due: np.ndarray,
+        state: ChunkState,
+        table: pa.Table,
+        offset: int,
+        ids: np.ndarray,
+    ) -> list[FindingBlock]:
+        q, plan = self.q, c.plan
+        out: list[FindingBlock] = []
+        bad = c.present & ~c.valid
+        if bad.any():
+            for reason in np.unique(c.reason[bad]).tolist():
+                rows = np.flatnonzero(bad & (c.reason == reason))
+                vals = cell_texts(table, plan, rows, self.mapping)
+                msg = f"`{item}` = {{value}} {REASON_TEXT[reason]}{self._allowed(plan)}"
+                out.append(FindingBlock("invalid-value", _sev("invalid-value"), item, msg, rows + offset, ids[rows], vals))
+        blocked = state.blocked.get(item)
+        if blocked is not None:
+            guards = self.evaluator.guards_of(plan.entry)
+            key = np.column_stack([blocked.reason.astype(np.float64), blocked.keys])
+            groups, inverse = np.unique(key, axis=0, return_inverse=True)
+            inverse = inverse.reshape(-1)
+            vals_all = cell_texts(table, plan, blocked.rows, self.mapping)
+            for gi, group in enumerate(groups):
+                sel = np.flatnonzero(inverse == gi)
+                g = guards[int(group[0])] if int(group[0]) >= 0 else None
+                rows = blocked.rows[sel]
+                if g is None:
+                    msg = f"`{item}` answered, but the routing does not ask it here"
+                    check = "out-of-path"
+                else:
+                    msg = causes.off_route_message(q, item, g, group[1:])
+                    check = "after-stop" if g.kind == "stop" else "out-of-path"
+                out.append(
+                    FindingBlock(check, _sev(check), item, msg, rows + offset, ids[rows], [vals_all[i] for i in sel])
+                )
+        if plan.kind != "note" and not plan.missing:
+            missing = due & ~c.present
+            if missing.any():
+                rows = np.flatnonzero(missing)
+                required = plan.entry.kind == "item" and plan.entry.stmt.flags.required
+                sev = Severity.error if required else _sev("missing-on-path")
+                extra = " (the item is `required`)" if required else ""
+                msg = f"`{item}` was due but has no answer{extra}"
+                out.append(FindingBlock("missing-on-path", sev, item, msg, rows + offset, ids[rows], None))
+        if c.not_shown is not None:
+            rows = np.flatnonzero(c.not_shown & due)
+            if rows.size:
+                msg = f"`{item}` is marked not shown, but the routing shows it to this respondent"
+                out.append(FindingBlock("shown-mismatch", _sev("shown-mismatch"), item, msg, rows + offset, ids[rows], None))
+        if c.unanswered is not None:
+            rows = np.flatnonzero(c.unanswered & ~due)
+            if rows.size:
+                msg = f"`{item}` is marked shown, but the routing does not show it to this respondent"
+                out.append(FindingBlock("shown-mismatch", _sev("shown-mismatch"), item, msg, rows + offset, ids[rows], None))
+        return out
+
+    def _allowed(self, plan: NamePlan) -> str:
+        nr = "" if plan.nonresponse is None or not plan.nonresponse.size else " or a non-response code"
+        if plan.kind == "multi":
+            return "; option cells hold 1 (chosen), 0 (not chosen) or blank"
+        if plan.allowed is not None:
+            codes = ", ".join(f"{int(v)}" for v in plan.allowed)
+            return f"; allowed: {codes}{nr}"
+        if plan.lo is not None:
+            whole = "a whole number " if plan.integer else ""
+            return f"; allowed: {whole}{plan.lo:g}..{plan.hi:g}{nr}"
+        return ""
+
+    def _check_blocks(self, state: ChunkState, offset: int, ids: np.ndarray) -> list[FindingBlock]:
+        out = []
+        for e in self.q.entries:
+            if e.kind != "check":
+                continue
+            fails = state.check_fails.get(e.name)
+            if fails is None or not fails.any():
+                continue
+            rows = np.flatnonzero(fails)
+            sev = Severity.warning if e.stmt.soft else Severity.error
+            req = causes.source_of(self.q, e.require) if e.require is not None else ""
+            msg = f"check `{e.name}` failed: {e.stmt.text} (requires `{req}`, line {e.span.line})"
+            out.append(FindingBlock("check-failed", sev, e.name, msg, rows + offset, ids[rows], None))
+        return out
+
+    def _typed(self, cells: dict[str, Cells], ids: np.ndarray, table: pa.Table) -> pd.DataFrame:
+        cols: dict[str, object] = {"id": ids}
+        for name, c in cells.items():
+            if c.chosen is not None:
+                for j, v in enumerate(c.plan.options):
+                    cols[f"{name}_{v}"] = np.where(c.valid, c.chosen[:, j].astype(np.float64), np.nan)
+            elif c.value is not None:
+                cols[name] = np.where(c.valid, c.value, np.nan)
+            elif c.plan.kind == "text" and not c.plan.missing:
+                texts = table.column(c.plan.columns[0]).to_pylist()
+                cols[name] = pd.array([t if ok else None for t, ok in zip(texts, c.valid.tolist(), strict=False)], dtype="string")
+        return pd.DataFrame(cols)

@@ -1,0 +1,11 @@
+"""`validate --format json`: the fields of DESIGN §5."""
+
+from __future__ import annotations
+
+import json
+
+from logiccheck.data.result import ValidationResult
+
+
+def validation_json(result: ValidationResult) -> str:
+    return json.dumps(result.to_json(), indent=2, ensure_ascii=False)

@@ -1,0 +1,86 @@
+"""Terminal output for validate: the per-item table, then findings grouped by check."""
+
+from __future__ import annotations
+
+from rich.console import Console
+from rich.markup import escape
+from rich.table import Table
+
+from logiccheck.data.result import ValidationResult
+from logiccheck.report.bars import bar_text
+
+STYLE = {"error": "bold red", "warning": "yellow", "info": "cyan"}
+SEVERITY_ORDER = {"error": 0, "warning": 1, "info": 2}
+
+
+def render_validation(console: Console, result: ValidationResult, *, show: int = 5, table_rows: int = 200) -> None:
+    """The table (answered > expected highlighted), then up to `show` findings per check."""
+    source = result.source or "export"
+    table = Table(
+        title=f"{escape(source)}: {result.respondents} respondents",
+        title_justify="left",
+        header_style="bold",
+        show_edge=False,
+        pad_edge=False,
+    )
+    table.add_column("item", justify="left", no_wrap=True, overflow="fold")
+    for col, justify in (
+        ("expected", "right"),
+        ("answered", "right"),
+        ("off path", "right"),
+        ("missing", "right"),
+        ("invalid", "right"),
+        ("route", "left"),  # bar: █ answered on path, ░ missing, ▓ off path
+        ("", "left"),
+    ):
+        table.add_column(col, justify=justify, no_wrap=True)  # type: ignore[arg-type]
+    for r in result.table.head(table_rows).itertuples(index=False):
+        over = bool(r.over_expected)
+        flag = "[bold red]> expected[/bold red]" if over else ""
+        answered = f"[bold red]{r.answered}[/bold red]" if over else str(r.answered)
+        table.add_row(
+            escape(r.item),
+            str(r.expected),
+            answered,
+            f"[red]{r.out_of_path}[/red]" if r.out_of_path else "0",
+            f"[cyan]{r.missing_on_path}[/cyan]" if r.missing_on_path else "0",
+            f"[red]{r.invalid}[/red]" if r.invalid else "0",
+            bar_text(int(r.expected), int(r.answered), int(r.out_of_path), int(r.missing_on_path), width=8),
+            flag,
+        )
+    console.print(table)
+    if len(result.table) > table_rows:
+        console.print(f"[dim]… {len(result.table) - table_rows} more items (use --format csv for all)[/dim]")
+    counts = result.counts_by_check()
+    if not counts:
+        console.print("[green]no findings[/green]")
+    groups = sorted(counts.items(), key=lambda kv: (SEVERITY_ORDER[kv[0][1]], -kv[1], kv[0][0]))
+    for (check, sev), count in groups:
+        console.print()
+        console.print(
+            f"[{STYLE[sev]}]{sev}[/{STYLE[sev]}] [magenta]{check}[/magenta]: {count} finding{'s' if count != 1 else ''}",
+            highlight=False,
+        )
+        # The first `show` findings by row, taken from each block's head only.
+        heads = []
+        for block in result.blocks:
+            if block.check == check and block.severity.value == sev:
+                heads.extend(block.head(show))
+        heads.sort(key=lambda f: (f.row is not None, f.row or 0))
+        shown = 0
+        for f in heads[:show]:
+            where = f"row {f.row}, id {f.respondent}" if f.row is not None else "file"
+            console.print(f"  [dim]{escape(where)}:[/dim] {escape(f.message)}", highlight=False, soft_wrap=True)
+            shown += 1
+        if count > shown:
+            console.print(f"  [dim]… and {count - shown} more (--format json or csv lists all)[/dim]", highlight=False)
+    console.print()
+    disp = ", ".join(f"{k} {v}" for k, v in result.dispositions.items())
+    console.print(f"dispositions: {disp}", highlight=False)
+    sev = result.severity_counts()
+    parts = [
+        f"[{STYLE[k]}]{v} {k}{'s' if v != 1 else ''}[/{STYLE[k]}]" if v else f"0 {k}s" for k, v in sev.items()
+    ]
+    console.print(f"{result.respondents} respondents validated: " + ", ".join(parts), highlight=False)
+    for note in result.notes:
+        console.print(f"[dim]note: {escape(note)}[/dim]", highlight=False)
