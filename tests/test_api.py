@@ -90,5 +90,10 @@ def test_validate_without_the_data_stage_says_so() -> None:
     survey = logiccheck.load("specs/bikeshare.qlc")
     with pytest.raises(logiccheck.StageMissing, match=r"logiccheck\.data"):
         survey.validate(pd.DataFrame({"id": [1]}))
+
+
+@pytest.mark.skipif(importlib.util.find_spec("logiccheck.clean") is not None, reason="the clean stage is present")
+def test_clean_without_the_clean_stage_says_so() -> None:
+    survey = logiccheck.load("specs/bikeshare.qlc")
     with pytest.raises(logiccheck.StageMissing, match=r"logiccheck\.clean"):
         survey.clean(pd.DataFrame({"id": [1]}))

@@ -163,3 +163,21 @@ def test_missing_report_extra_says_how_to_install(monkeypatch) -> None:
     assert result.exit_code == 2
     assert 'pip install "logiccheck[report]"' in result.output
     assert len(result.output.strip().splitlines()) == 1
+
+
+def test_unreachable_marks_from_the_routing_checks() -> None:
+    from logiccheck.checks.registry import get
+    from logiccheck.checks.runner import run_checks
+
+    if get("unreachable-item") is None or get("unreachable-item").run is None:
+        pytest.skip("the routing check unreachable-item is not registered in this build")
+    text = (
+        'survey u "U"\n\ncodes yesno\n  yes = 1 "Yes"\n  no = 2 "No"\n\n'
+        'a: single yesno "A?" gate\n'
+        'b: text "B?" when a = yes and a = no\n'
+        'c: text "C?" when a = yes\n'
+    )
+    loaded = load_text(text, "u.qlc")
+    pic = flow_picture(loaded.questionnaire, run_checks(loaded))
+    assert pic.by_name("b").unreachable
+    assert not pic.by_name("a").unreachable and not pic.by_name("c").unreachable

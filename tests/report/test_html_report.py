@@ -141,6 +141,13 @@ def test_notebook_fragment_has_summary_and_chart(report_html) -> None:
     fragment = render_fragment(data)
     assert 'id="summary-cards"' in fragment and 'id="item-chart"' in fragment and "<svg" in fragment
     assert "<html" not in fragment and "<script" not in fragment.lower()
+    # its styles stay inside its own box, so the notebook page keeps its look
+    import re
+
+    css = fragment[fragment.index("<style>") + 7 : fragment.index("</style>")]
+    css = re.sub(r"/\*.*?\*/", "", css, flags=re.S)
+    selectors = [s.strip() for block in re.findall(r"([^{}]+)\{", css) for s in block.split(",")]
+    assert selectors and all(s.startswith(".logiccheck-result") for s in selectors), selectors
 
 
 def test_report_command_spec_only(tmp_path) -> None:
@@ -157,7 +164,8 @@ def test_templates_ship_inside_the_package() -> None:
     from importlib.resources import files
 
     folder = files("logiccheck.report") / "templates"
-    for name in ("report.html.j2", "fragment.html.j2", "_summary.html.j2", "_chart.html.j2", "_styles.css"):
+    for name in ("report.html.j2", "fragment.html.j2", "_summary.html.j2", "_chart.html.j2", "_styles.css",
+                 "_fragment.css"):
         assert (folder / name).is_file(), name
 
 
@@ -177,5 +185,6 @@ def test_templates_are_in_the_wheel(tmp_path) -> None:
     assert done.returncode == 0, done.stderr[-800:]
     wheel = next(tmp_path.glob("*.whl"))
     names = set(zipfile.ZipFile(wheel).namelist())
-    for name in ("report.html.j2", "fragment.html.j2", "_summary.html.j2", "_chart.html.j2", "_styles.css"):
+    for name in ("report.html.j2", "fragment.html.j2", "_summary.html.j2", "_chart.html.j2", "_styles.css",
+                 "_fragment.css"):
         assert f"logiccheck/report/templates/{name}" in names
