@@ -181,3 +181,16 @@ def test_unreachable_marks_from_the_routing_checks() -> None:
     pic = flow_picture(loaded.questionnaire, run_checks(loaded))
     assert pic.by_name("b").unreachable
     assert not pic.by_name("a").unreachable and not pic.by_name("c").unreachable
+
+
+def test_large_generated_spec_is_split_and_stays_readable() -> None:
+    from benchmarks.generate import generate
+
+    q = load_text(generate(items=300, skips=True, stops=True), "big.qlc").questionnaire
+    pictures = routing_pictures(q)
+    assert len(pictures) > 1
+    assert len({p.name for p in pictures}) == len(pictures)  # one file name per picture
+    biggest = max(pictures, key=lambda p: len(p.boxes))
+    boxes = _text_boxes(biggest.figure)
+    for (a, ea), (b, eb) in itertools.combinations(boxes, 2):
+        assert not ea.overlaps(eb), f"labels overlap: {a!r} and {b!r}"

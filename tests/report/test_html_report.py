@@ -188,3 +188,39 @@ def test_templates_are_in_the_wheel(tmp_path) -> None:
     for name in ("report.html.j2", "fragment.html.j2", "_summary.html.j2", "_chart.html.j2", "_styles.css",
                  "_fragment.css"):
         assert f"logiccheck/report/templates/{name}" in names
+
+
+def test_any_free_text_round_trips_as_text(bikeshare) -> None:
+    # Property: whatever a respondent typed, the page shows exactly that text and no
+    # markup of it (checked with the standard library's HTML parser).
+    import pandas as pd
+    from hypothesis import given, settings
+    from hypothesis import strategies as st
+
+    from logiccheck.report.html import _environment, report_context
+
+    q, _ = bikeshare
+    alphabet = st.characters(blacklist_categories=("Cs", "Cc"), blacklist_characters="\x00")
+    hostile = st.sampled_from(["<", ">", "&", '"', "'", "</td>", "<img src=x onerror=alert(1)>", "=", "+", "@", "{{", "{%"])
+    texts = st.lists(st.one_of(st.text(alphabet, max_size=12), hostile), min_size=1, max_size=6).map("".join)
+
+    @settings(max_examples=30, deadline=None)
+    @given(value=texts)
+    def check(value: str) -> None:
+        findings = pd.DataFrame([{"check": "out-of-path", "severity": "error", "respondent": "r1", "row": 2,
+                                  "item": "praise", "value": value, "message": "m"}])
+        data = ReportData(q, [], respondents=1, items=pd.DataFrame(columns=["item"]), findings=findings)
+        html = _environment().get_template("report.html.j2").render(**report_context(data, pictures=False, chart=False))
+        page = parse(html)
+        assert value.strip() in "".join(page.text)
+        assert not any(tag == "img" for tag, _ in page.tags)
+
+    check()
+
+
+def test_survey_report_without_data(tmp_path) -> None:
+    import logiccheck
+
+    path = logiccheck.load("specs/bikeshare.qlc").report(tmp_path / "spec.html")
+    page = parse(path.read_text(encoding="utf-8"))
+    assert "routing" in page.ids and "item-table" not in page.ids
