@@ -51,7 +51,8 @@ def item_chart(items: pd.DataFrame, respondents: int | None = None) -> Figure:
     height = max(2.0, 1.2 + ROW_H * len(rows))
     fig = Figure(figsize=(8.0, height), dpi=100)
     left = 1.9 / 8.0
-    ax = fig.add_axes((left, 0.9 / height, 1 - left - 0.04, 1 - 1.3 / height))
+    right = 0.9 / 8.0  # room for the off-path counts
+    ax = fig.add_axes((left, 0.9 / height, 1 - left - right, 1 - 1.3 / height))
     ys = list(range(len(rows)))
     data = [v for _, header, v in rows if not header]
     bar_y = [y for y, (_, header, _) in zip(ys, rows, strict=False) if not header]
@@ -65,6 +66,15 @@ def item_chart(items: pd.DataFrame, respondents: int | None = None) -> Figure:
             label="out of path", gid="bars-out-of-path")
     ax.scatter([v["expected"] for v in data], bar_y, marker="|", s=120, linewidths=1.6,
                color=COLOURS["expected"], label="expected (routed to the item)", zorder=4)
+    # A count beside every bar with off-path answers: a handful among thousands would be
+    # too thin to see as a bar segment.
+    from matplotlib.transforms import blended_transform_factory
+
+    beside = blended_transform_factory(ax.transAxes, ax.transData)
+    for y, v in zip(bar_y, data, strict=True):
+        if v["out_of_path"]:
+            ax.text(1.01, y, f"◀ {int(v['out_of_path'])} off path", transform=beside, fontsize=6.5,
+                    color=COLOURS["out_of_path"], va="center", ha="left", parse_math=False, gid="off-path-count")
     ax.set_yticks(ys, [label for label, _, _ in rows])
     for tick, (_, header, _) in zip(ax.get_yticklabels(), rows, strict=False):
         tick.set_parse_math(False)

@@ -91,3 +91,25 @@ def test_report_command_and_validate_html(tmp_path) -> None:
 def test_demo_report_is_small() -> None:
     html = logiccheck.load(SPEC).validate(EXPORT).to_html()
     assert len(html.encode("utf-8")) < 2_000_000
+
+
+def test_validate_table_has_a_route_bar_column() -> None:
+    from logiccheck.report.bars import OUT
+
+    result = CliRunner().invoke(cli, ["validate", SPEC, "--data", EXPORT, "--color", "never"])
+    assert "route" in result.output
+    survey = logiccheck.load(SPEC).validate(EXPORT)
+    broken = survey.table.loc[survey.table["out_of_path"] > 0, "item"].tolist()
+    lines = {line.split()[0]: line for line in result.output.splitlines() if line.strip() and line.split()[0] in survey.table["item"].tolist()}
+    assert broken and all(OUT in lines[item] for item in broken)  # the off-path cell is visible
+    assert all(OUT not in lines[item] for item in set(lines) - set(broken))
+
+
+def test_report_without_the_extra_says_how_to_install(monkeypatch, tmp_path) -> None:
+    import importlib.util
+
+    real = importlib.util.find_spec
+    monkeypatch.setattr(importlib.util, "find_spec", lambda name, *a: None if name == "jinja2" else real(name, *a))
+    result = CliRunner().invoke(cli, ["report", SPEC, "--out", str(tmp_path / "r.html")])
+    assert result.exit_code == 2 and 'pip install "logiccheck[report]"' in result.output
+    assert not (tmp_path / "r.html").exists()
