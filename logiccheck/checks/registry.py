@@ -18,6 +18,7 @@ Runner = Callable[["LintContext"], Iterable[Diagnostic]]
 # Modules whose import registers checks; the registry is filled on first use.
 CHECK_MODULES = (
     "logiccheck.checks.static",
+    "logiccheck.checks.suppress",
     "logiccheck.checks.routing",
     "logiccheck.data.checks",
     "logiccheck.quality.checks",

@@ -6,10 +6,21 @@ from collections.abc import Iterable
 
 from logiccheck.checks.context import LintContext
 from logiccheck.checks.registry import all_checks
+from logiccheck.checks.suppress import apply_suppressions
 from logiccheck.diagnostics import Diagnostic, Severity, Span
-from logiccheck.load import Loaded
+from logiccheck.load import Loaded, gc_paused
 
 STAGE_ORDER = ("spec", "routing")
+
+
+def statement_lines(loaded: Loaded) -> dict[int, int]:
+    """First line -> last line of each statement (its span ends on the next line)."""
+    out: dict[int, int] = {}
+    for entry in loaded.questionnaire.entries:
+        span = entry.stmt.span
+        end = span.end_line if span.end_line is not None else span.line
+        out[span.line] = max(span.line, end - 1)
+    return out
 
 
 def run_checks(
@@ -32,7 +43,12 @@ def run_checks(
             if info.stage != stage or info.run is None or info.name in disabled:
                 continue
             try:
-                out.extend(info.run(ctx))
+                if stage == "spec":
+                    # Static checks build the graph and many small records; see gc_paused.
+                    with gc_paused():
+                        out.extend(info.run(ctx))
+                else:
+                    out.extend(info.run(ctx))
             except Exception as err:  # noqa: BLE001 - reported as a diagnostic instead
                 out.append(
                     Diagnostic(
@@ -42,6 +58,11 @@ def run_checks(
                         message=f"check `{info.name}` failed: {type(err).__name__}: {err}",
                     )
                 )
+    ran = {n for n, c in checks.items() if c.stage in stages and n not in disabled}
+    out = apply_suppressions(
+        out, loaded.questionnaire.text, loaded.questionnaire.file, ran=ran, known=checks,
+        statements=statement_lines(loaded),
+    )
     result = []
     for diag in out:
         if diag.check in disabled:

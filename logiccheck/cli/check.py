@@ -45,7 +45,7 @@ def check_command(
     diagnostics, sources = lint_files([spec], solver=not no_solver)
     loaded = load_spec(spec)
     note = spec_note(loaded)
-    mapping = load_data_mapping(map_file, frame)
+    mapping = load_data_mapping(map_file, frame, spec)
     result = run_validation(loaded, data, mapping, encoding, chunk_rows, color)
     if fmt == "json":
         payload = {

@@ -6,6 +6,7 @@ import click
 
 from logiccheck import __version__
 from logiccheck.cli.check import check_command
+from logiccheck.cli.diff import diff_command
 from logiccheck.cli.explain import explain_command
 from logiccheck.cli.graph import graph_command
 from logiccheck.cli.lint import lint_command
@@ -27,6 +28,7 @@ cli.add_command(graph_command)
 cli.add_command(validate_command)
 cli.add_command(check_command)
 cli.add_command(simulate_command)
+cli.add_command(diff_command)
 cli.add_command(report_command)
 
 

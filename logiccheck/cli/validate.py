@@ -18,7 +18,7 @@ from logiccheck.report.data_csv import items_csv, write_csv_dir
 from logiccheck.report.data_json import validation_json
 from logiccheck.report.data_text import render_validation
 
-DATA_FORMATS = ["text", "json", "csv", "html"]
+DATA_FORMATS = ["text", "json", "csv", "sarif", "junit", "github", "html"]
 PROGRESS_AFTER = 1.5  # seconds before a progress bar appears
 
 
@@ -38,9 +38,23 @@ def data_options(fn):  # type: ignore[no-untyped-def]
     return fn
 
 
-def load_data_mapping(map_file: str | None, frame: str | None) -> DataMapping:
+def _configured_mapping(spec: str | None) -> DataMapping:
+    from logiccheck.config import ConfigError, config_for
+
+    if spec is None:
+        return DataMapping()
     try:
-        mapping = load_mapping(map_file) if map_file else DataMapping()
+        config = config_for(spec)
+    except ConfigError as err:
+        fail(str(err))
+    model = config.models.get("data")
+    return model if isinstance(model, DataMapping) else DataMapping()
+
+
+def load_data_mapping(map_file: str | None, frame: str | None, spec: str | None = None) -> DataMapping:
+    """--map FILE; else the [data] table of the configuration found above the spec."""
+    try:
+        mapping = load_mapping(map_file) if map_file else _configured_mapping(spec)
     except MappingError as err:
         fail(str(err))
     if frame is not None:
@@ -88,8 +102,14 @@ def run_validation(
             state["bar"].stop()  # type: ignore[attr-defined]
 
 
-def emit_validation(result: ValidationResult, fmt: str, color: str, show: int, out: str | None) -> None:
-    if fmt == "json":
+def emit_validation(
+    result: ValidationResult, fmt: str, color: str, show: int, out: str | None, loaded: Loaded | None = None
+) -> None:
+    if fmt in ("sarif", "junit", "github"):
+        from logiccheck.report.machine import emit_findings
+
+        click.echo(emit_findings(result, fmt, loaded.questionnaire if loaded else None))
+    elif fmt == "json":
         click.echo(validation_json(result))
     elif fmt == "csv":
         if out:
@@ -146,7 +166,7 @@ def validate_command(
     """Check an export against the spec's routing: off-route answers, missing, invalid values."""
     loaded = load_spec(spec)
     note = spec_note(loaded)
-    mapping = load_data_mapping(map_file, frame)
+    mapping = load_data_mapping(map_file, frame, spec)
     result = run_validation(loaded, data, mapping, encoding, chunk_rows, color)
     if note:
         click.echo(f"logiccheck: note: {note}", err=True)
@@ -157,5 +177,5 @@ def validate_command(
         if out:
             click.echo(f"logiccheck: wrote {path}", err=True)
     else:
-        emit_validation(result, fmt, color, show, out)
+        emit_validation(result, fmt, color, show, out, loaded)
     sys.exit(validation_status(result, fail_on))

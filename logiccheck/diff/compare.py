@@ -1,0 +1,212 @@
+"""Compare two versions of a spec: items, answer lists, wording, and who is asked."""
+
+from __future__ import annotations
+
+from typing import Any
+
+from logiccheck.diff.model import KINDS, Change, SpecDiff
+from logiccheck.diff.routing import CrossVersion
+from logiccheck.model import nodes as n
+from logiccheck.model.questionnaire import Entry, Questionnaire
+
+POSITION_KEYS = frozenset({"span", "name_span", "text_span", "codes_span", "target_span"})
+
+
+def _strip(value: Any) -> Any:
+    """A node as plain data without positions, for structural equality."""
+    if isinstance(value, n.BaseModel):
+        return _strip(value.model_dump())
+    if isinstance(value, dict):
+        return {k: _strip(v) for k, v in value.items() if k not in POSITION_KEYS}
+    if isinstance(value, list):
+        return [_strip(v) for v in value]
+    return value
+
+
+def _change(kind: str, item: str | None, message: str, **kw: Any) -> Change:
+    return Change(kind=kind, impact=KINDS[kind][0], item=item, message=message, **kw)
+
+
+def _options(q: Questionnaire, stmt: Any) -> list[n.CodeOption]:
+    codes = q.item_codes(stmt)
+    return list(codes.options) if codes else []
+
+
+def _signature(q: Questionnaire, e: Entry) -> tuple[Any, ...]:
+    """What identifies an item apart from its name: type, answers and text."""
+    t = e.stmt.type
+    opts = tuple((o.label, o.value, o.text) for o in _options(q, e.stmt))
+    return (t.kind, t.lo, t.hi, opts, e.stmt.text, e.stmt.grid is not None)
+
+
+def _items(q: Questionnaire) -> dict[str, Entry]:
+    return {e.name: e for e in q.entries if e.is_item}
+
+
+def _renames(old: Questionnaire, new: Questionnaire) -> dict[str, str]:
+    """new name -> old name, for items with the same text and answers under a new name."""
+    old_items, new_items = _items(old), _items(new)
+    gone = [k for k in old_items if k not in new_items]
+    added = [k for k in new_items if k not in old_items]
+    out: dict[str, str] = {}
+    taken: set[str] = set()
+    for name in added:
+        sig = _signature(new, new_items[name])
+        match = [g for g in gone if g not in taken and _signature(old, old_items[g]) == sig]
+        if len(match) == 1:  # an ambiguous match is reported as remove + add
+            out[name] = match[0]
+            taken.add(match[0])
+    return out
+
+
+def _answer_changes(old: Questionnaire, new: Questionnaire, oe: Entry, ne: Entry, name: str) -> list[Change]:
+    ot, nt = oe.stmt.type, ne.stmt.type
+    where = {"old": oe.span, "new": ne.span}
+    if ot.kind != nt.kind:
+        return [_change("type-changed", name, f"`{name}` was {ot.kind}, is now {nt.kind}", **where)]
+    out: list[Change] = []
+    if (ot.lo, ot.hi) != (nt.lo, nt.hi):
+        out.append(
+            _change("type-changed", name, f"`{name}` range {_range(ot)} is now {_range(nt)}", **where,
+                    details={"old_range": [ot.lo, ot.hi], "new_range": [nt.lo, nt.hi]})
+        )
+    if old.allows_nonresponse(oe.stmt) != new.allows_nonresponse(ne.stmt):
+        now = "accepts" if new.allows_nonresponse(ne.stmt) else "no longer accepts"
+        out.append(_change("type-changed", name, f"`{name}` {now} non-response codes (`strict` changed)", **where))
+    if not ot.coded:
+        return out
+    before, after = _options(old, oe.stmt), _options(new, ne.stmt)
+    by_label_old = {o.label: o for o in before}
+    by_label_new = {o.label: o for o in after}
+    by_value_old = {o.value: o for o in before}
+    by_value_new = {o.value: o for o in after}
+    moved = []
+    for label, o in by_label_old.items():
+        m = by_label_new.get(label)
+        if m is not None and m.value != o.value:
+            moved.append(f"`{label}` {o.value} → {m.value}")
+    if moved:
+        first = next(m for lb, m in by_label_new.items() if lb in by_label_old and by_label_old[lb].value != m.value)
+        out.append(
+            _change("recode", name, f"`{name}`: answers stored under other values: " + ", ".join(moved),
+                    old=oe.span, new=first.span, details={"moved": moved})
+        )
+    for label, o in by_label_old.items():
+        m = by_label_new.get(label)
+        if m is not None and m.value == o.value and m.text != o.text:
+            out.append(
+                _change("option-reworded", name, f"`{name}` option `{label}`: \"{o.text}\" is now \"{m.text}\"",
+                        **where)
+            )
+    # An option counts as added or removed when neither its label nor its value survives.
+    for o in after:
+        if o.label not in by_label_old and o.value not in by_value_old:
+            out.append(_change("option-added", name, f"`{name}` gains option `{o.label}` = {o.value} \"{o.text}\"", **where))
+    for o in before:
+        if o.label not in by_label_new and o.value not in by_value_new:
+            out.append(_change("option-removed", name, f"`{name}` loses option `{o.label}` = {o.value} \"{o.text}\"", **where))
+    relabelled = [
+        f"{o.value}: `{o.label}` → `{by_value_new[o.value].label}`"
+        for o in before
+        if o.label not in by_label_new and o.value in by_value_new and by_value_new[o.value].label not in by_label_old
+    ]
+    if relabelled:
+        out.append(
+            _change("option-reworded", name, f"`{name}` labels renamed: " + ", ".join(relabelled), **where)
+        )
+    return out
+
+
+def _range(t: n.TypeSpec) -> str:
+    def num(x: float | None) -> str:
+        return "?" if x is None else (str(int(x)) if float(x).is_integer() else str(x))
+
+    return f"{num(t.lo)}..{num(t.hi)}"
+
+
+def _route_text(q: Questionnaire, e: Entry, rename: dict[str, str]) -> Any:
+    """The statement's conditions and guards as plain data, names mapped to old ones."""
+    stops, skips = q.guards(e)
+    data = {
+        "conds": [_strip(c) for c in e.conditions()],
+        "stops": [[_strip(c) for c in s.conditions()] for s in stops],
+        "skips": [[_strip(c) for c in s.conditions()] for s in skips],
+    }
+
+    def rename_refs(value: Any) -> Any:
+        if isinstance(value, dict):
+            out = {k: rename_refs(v) for k, v in value.items()}
+            if out.get("kind") in ("ref", "func") and out.get("name") in rename:
+                out["name"] = rename[out["name"]]
+            return out
+        if isinstance(value, list):
+            return [rename_refs(v) for v in value]
+        return value
+
+    return rename_refs(data)
+
+
+def diff_questionnaires(old: Questionnaire, new: Questionnaire, *, routing: bool = True) -> SpecDiff:
+    """Every change between two resolved versions, in the new version's order."""
+    result = SpecDiff(old_file=old.file, new_file=new.file)
+    old_items, new_items = _items(old), _items(new)
+    rename = _renames(old, new)
+    renamed_old = set(rename.values())
+    changes: list[Change] = []
+
+    if _strip(old.nonresponse) != _strip(new.nonresponse):
+        a = ", ".join(f"{o.label} = {o.value}" for o in old.nonresponse) or "none"
+        b = ", ".join(f"{o.label} = {o.value}" for o in new.nonresponse) or "none"
+        changes.append(_change("nonresponse-changed", None, f"non-response codes were {a}, are now {b}"))
+
+    pairs: list[tuple[str, str]] = []  # (old name, new name) of items in both
+    for name, ne in new_items.items():
+        if name in old_items:
+            pairs.append((name, name))
+        elif name in rename:
+            was = rename[name]
+            pairs.append((was, name))
+            changes.append(
+                _change("item-renamed", name, f"`{was}` is now called `{name}`", old_name=was,
+                        old=old_items[was].span, new=ne.span)
+            )
+        else:
+            changes.append(_change("item-added", name, f"`{name}` is new", new=ne.span))
+    for name, oe in old_items.items():
+        if name not in new_items and name not in renamed_old:
+            changes.append(_change("item-removed", name, f"`{name}` was removed", old=oe.span))
+
+    cross = CrossVersion(old, new, rename) if routing else None
+    for was, name in pairs:
+        oe, ne = old_items[was], new_items[name]
+        changes.extend(_answer_changes(old, new, oe, ne, name))
+        if oe.stmt.text != ne.stmt.text:
+            changes.append(
+                _change("wording-changed", name, f"`{name}` text was \"{oe.stmt.text}\", is now \"{ne.stmt.text}\"",
+                        old=oe.stmt.text_span, new=ne.stmt.text_span)
+            )
+        if cross is None:
+            continue
+        result.compared += 1
+        verdict = cross.compare(was, name)
+        where = {"old": oe.span, "new": ne.span}
+        if verdict.error is not None:
+            changes.append(_change("routing-not-compared", name, f"`{name}`: {verdict.error}", **where))
+        elif verdict.same:
+            result.routing_same += 1
+            if _route_text(old, oe, {}) != _route_text(new, ne, rename):
+                changes.append(
+                    _change("routing-equivalent", name, f"`{name}`: the conditions were rewritten; "
+                            "the solver proves the same respondents are asked", **where)
+                )
+        else:
+            side, other = ("old", "new") if verdict.asked_old else ("new", "old")
+            changes.append(
+                _change("routing-changed", name,
+                        f"`{name}`: a respondent is asked it in the {side} version and not in the {other}",
+                        witness=verdict.witness, asked_in=side, **where)
+            )
+    order = {name: i for i, name in enumerate(list(new_items) + [k for k in old_items if k not in new_items])}
+    changes.sort(key=lambda c: (order.get(c.item or "", -1),))
+    result.changes = changes
+    return result

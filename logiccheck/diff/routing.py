@@ -1,0 +1,300 @@
+"""Who is asked each item, in two versions of a spec, over one shared respondent.
+
+Both versions are encoded by `logic.Encoding` (tags `@old` and `@new`: routing
+variables apart). A respondent is the answers they would give if asked, shared by both:
+
+* the new version's value variables are renamed apart, then linked to the old ones item
+  by item (a renamed item to its old name). Codes are linked **by label**: a recode (the
+  same answer stored under another number) does not change who is asked, and is reported
+  separately; ordering comparisons still use each version's own values.
+* the respondent's answer space is the union of both versions' (an option or range only
+  one version has is still a possible answer), so the domain constraints of linked items
+  are replaced by their union.
+* an item asked in both versions is answered in both or in neither.
+
+Two versions route an item alike when no respondent is asked it in one and not in the
+other; the solver proves that, or gives such a respondent.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any
+
+import z3
+
+from logiccheck.logic import Encoding, EncodingError
+from logiccheck.model import nodes as n
+from logiccheck.model.questionnaire import Entry, Questionnaire
+
+NO_ANSWER = "(no answer)"
+ANSWERED = "(answered)"
+
+
+@dataclass
+class RoutingResult:
+    """`same` proven, or a witness respondent (`witness`) with where they are asked."""
+
+    same: bool
+    witness: dict[str, str] | None = None
+    asked_old: bool | None = None
+    asked_new: bool | None = None
+    error: str | None = None
+
+
+def _valued(q: Questionnaire) -> dict[str, Entry]:
+    """Items and sample variables that hold a value, by name (first definition)."""
+    out: dict[str, Entry] = {}
+    for e in q.entries:
+        if e.kind in ("item", "sample") and e.stmt.type.kind != "note" and q.symbols.get(e.name) is e:
+            out[e.name] = e
+    return out
+
+
+def _labels(q: Questionnaire, e: Entry) -> dict[str, int]:
+    codes = q.item_codes(e.stmt)
+    out = {o.label: o.value for o in (codes.options if codes else [])}
+    if e.kind == "item" and q.allows_nonresponse(e.stmt):
+        out.update({o.label: o.value for o in q.nonresponse})
+    return out
+
+
+def _refs(expr: Any) -> set[str]:
+    names = set()
+    for node in n.walk(expr):
+        if isinstance(node, (n.Ref, n.Func)):
+            names.add(node.name)
+    return names
+
+
+def support(q: Questionnaire, name: str) -> set[str]:
+    """Every name whose value or routing can decide whether `name` is asked."""
+    seen: set[str] = set()
+    todo = [name]
+    while todo:
+        current = todo.pop()
+        entry = q.symbols.get(current)
+        if entry is None or current in seen:
+            continue
+        seen.add(current)
+        exprs = list(entry.conditions()) if entry.kind != "let" else [entry.own]
+        stops, skips = q.guards(entry)
+        for guard in (*stops, *skips):
+            exprs.extend(guard.conditions())
+        for expr in exprs:
+            todo.extend(_refs(expr) - seen)
+    return seen
+
+
+class CrossVersion:
+    """Both versions over one respondent; `compare(old_name, new_name)` per item."""
+
+    def __init__(self, old: Questionnaire, new: Questionnaire, new_to_old: dict[str, str]) -> None:
+        self.q_old, self.q_new = old, new
+        self.enc_old = Encoding(old, tag="@old")
+        self.enc_new = Encoding(new, tag="@new")
+        self.new_to_old = new_to_old
+        self.old_to_new = {was: now for now, was in new_to_old.items()}
+        self._subst: list[tuple[Any, Any]] = []
+        self._renamed_vars: dict[str, Any] = {}
+        self._label_vars: dict[str, tuple[Any, list[str]]] = {}
+        self._build()
+        self._solver: z3.Solver | None = None
+
+    # ------------------------------------------------------------ the shared respondent
+    def _apart(self, var: Any) -> Any:
+        """The new version's copy of a value variable."""
+        key = var.decl().name()
+        if key not in self._renamed_vars:
+            fresh = z3.Const(f"{key}@new", var.sort())
+            self._renamed_vars[key] = fresh
+            self._subst.append((var, fresh))
+        return self._renamed_vars[key]
+
+    def _build(self) -> None:
+        old_vals, new_vals = _valued(self.q_old), _valued(self.q_new)
+        # Rename every value and option variable of the new version apart.
+        for name, e in new_vals.items():
+            kind = e.stmt.type.kind
+            if kind in ("single", "number", "decimal"):
+                self._apart(self.enc_new.value(name))
+            elif kind == "multi":
+                for value in _labels(self.q_new, e).values():
+                    self._apart(self.enc_new.option(name, value))
+        linked_old: set[int] = set()
+        linked_new: set[int] = set()
+        links: list[Any] = []
+        for new_name, ne in new_vals.items():
+            old_name = self.new_to_old.get(new_name, new_name)
+            oe = old_vals.get(old_name)
+            if oe is None or oe.stmt.type.kind != ne.stmt.type.kind or oe.kind != ne.kind:
+                continue  # nothing to link: a new item, or a type change
+            kind = ne.stmt.type.kind
+            if kind == "text":
+                pass
+            elif kind == "multi":
+                lo, ln = _labels(self.q_old, oe), _labels(self.q_new, ne)
+                for label in set(lo) & set(ln):
+                    links.append(self.enc_old.option(old_name, lo[label]) == self.new_var_option(new_name, ln[label]))
+            elif kind == "single":
+                lo, ln = _labels(self.q_old, oe), _labels(self.q_new, ne)
+                labels = list(dict.fromkeys([*lo, *ln]))
+                choice = z3.Int(f"label:{old_name}")
+                self._label_vars[old_name] = (choice, labels)
+                links.append(z3.And(choice >= 0, choice < len(labels)))
+                for table, var in ((lo, self.enc_old.value(old_name)), (ln, self.new_var_value(new_name))):
+                    # A label this version lacks maps to a value it does not use.
+                    spare = min([*table.values(), 0]) - 1
+                    expr: Any = z3.IntVal(spare)
+                    for i, label in enumerate(labels):
+                        expr = z3.If(choice == i, table.get(label, spare), expr)
+                    links.append(var == expr)
+                linked_old.add(oe.index)
+                linked_new.add(ne.index)
+            else:
+                links.append(self.enc_old.value(old_name) == self.new_var_value(new_name))
+                linked_old.add(oe.index)
+                linked_new.add(ne.index)
+            if ne.kind == "item":
+                ask_o, ask_n = self.enc_old.asked(old_name), self.enc_new.asked(new_name)
+                ans_o, ans_n = self.enc_old.answered(old_name), self.enc_new.answered(new_name)
+                links.append(z3.Implies(z3.And(ask_o, ask_n), ans_o == ans_n))
+        facts: list[Any] = []
+        new_formulas = self._all_to_new([c.formula for c in self.enc_new.conjuncts])
+        domains_old = {c.entry: c.formula for c in self.enc_old.conjuncts if c.kind == "domain"}
+        domains_new = {c.entry: f for c, f in zip(self.enc_new.conjuncts, new_formulas, strict=True) if c.kind == "domain"}
+        for c in self.enc_old.conjuncts:
+            if not (c.kind == "domain" and c.entry in linked_old):
+                facts.append(c.formula)
+        for c, formula in zip(self.enc_new.conjuncts, new_formulas, strict=True):
+            if not (c.kind == "domain" and c.entry in linked_new):
+                facts.append(formula)
+        # Linked numbers: the union of both ranges (singles are bounded by their label).
+        for new_name, ne in new_vals.items():
+            old_name = self.new_to_old.get(new_name, new_name)
+            oe = old_vals.get(old_name)
+            if oe is None or ne.index not in linked_new or ne.stmt.type.kind == "single":
+                continue
+            parts = [d for d in (domains_old.get(oe.index), domains_new.get(ne.index)) if d is not None]
+            if parts:
+                facts.append(z3.Or(parts))
+        self.facts = facts + links
+
+    def new_var_value(self, name: str) -> Any:
+        return self._apart(self.enc_new.value(name))
+
+    def new_var_option(self, name: str, value: int) -> Any:
+        return self._apart(self.enc_new.option(name, value))
+
+    def _all_to_new(self, formulas: list[Any]) -> list[Any]:
+        # One substitution over all of them: z3's Python layer checks every pair per call.
+        if not self._subst or not formulas:
+            return list(formulas)
+        marks = [z3.Bool(f"__part{i}") for i in range(len(formulas))]
+        bundle = z3.And([m == f for m, f in zip(marks, formulas, strict=True)])
+        done = z3.substitute(bundle, *self._subst)
+        parts = done.children() if z3.is_and(done) else [done]
+        assert len(parts) == len(formulas)
+        return [p.arg(1) for p in parts]
+
+    # ------------------------------------------------------------ queries
+    def _get_solver(self, timeout_ms: int) -> z3.Solver:
+        if self._solver is None:
+            self._solver = z3.Solver()
+            self._solver.set("timeout", timeout_ms)
+            self._solver.add(*self.facts)
+        return self._solver
+
+    def _opaque(self, q: Questionnaire, enc: Encoding, name: str) -> str | None:
+        for dep in support(q, name):
+            entry = q.symbols.get(dep)
+            if entry is not None and entry.index in enc.unencodable:
+                return f"the conditions of `{dep}` cannot be read"
+        guards = q.guards(q.symbols[name])
+        if any(g.index in enc.unencodable for g in (*guards[0], *guards[1])):
+            return "an earlier stop or skip cannot be read"
+        return None
+
+    def compare(self, old_name: str, new_name: str, timeout_ms: int = 20000) -> RoutingResult:
+        why = self._opaque(self.q_old, self.enc_old, old_name) or self._opaque(self.q_new, self.enc_new, new_name)
+        if why is not None:
+            return RoutingResult(same=False, error=why)
+        try:
+            a_old = self.enc_old.asked(old_name)
+            a_new = self.enc_new.asked(new_name)
+        except (EncodingError, KeyError) as err:
+            return RoutingResult(same=False, error=str(err))
+        solver = self._get_solver(timeout_ms)
+        solver.push()
+        try:
+            solver.add(z3.Xor(a_old, a_new))
+            verdict = solver.check()
+            model = solver.model() if verdict == z3.sat else None
+        finally:
+            solver.pop()
+        if verdict == z3.unsat:
+            return RoutingResult(same=True)
+        if model is None:
+            return RoutingResult(same=False, error="the solver gave up (timeout)")
+        names = support(self.q_old, old_name) | {
+            self.new_to_old.get(x, x) for x in support(self.q_new, new_name)
+        }
+        names.discard(old_name)
+        return RoutingResult(
+            same=False,
+            witness=self._witness(model, names),
+            asked_old=z3.is_true(model.eval(a_old, model_completion=True)),
+            asked_new=z3.is_true(model.eval(a_new, model_completion=True)),
+        )
+
+    # ------------------------------------------------------------ witnesses
+    def _witness(self, model: z3.ModelRef, old_names: set[str]) -> dict[str, str]:
+        """The answers the respondent would give, named as the new version names them;
+        items asked in neither version are left out (their answers cannot matter)."""
+        def ev(x: Any) -> Any:
+            return model.eval(x, model_completion=True)
+
+        old_vals, new_vals = _valued(self.q_old), _valued(self.q_new)
+        order = [e.name for e in self.q_new.entries] + [e.name for e in self.q_old.entries]
+        out: dict[str, str] = {}
+        for key in sorted(old_names, key=lambda k: order.index(self.old_to_new.get(k, k)) if self.old_to_new.get(k, k) in order else 0):
+            new_name = self.old_to_new.get(key, key)
+            oe, ne = old_vals.get(key), new_vals.get(new_name)
+            # Read the answer from a version that asks the item (or a sample variable).
+            sides = []
+            if oe is not None:
+                asked = z3.BoolVal(True) if oe.kind == "sample" else self.enc_old.asked(key)
+                sides.append(("old", oe, asked, self.enc_old.answered(key)))
+            if ne is not None:
+                asked = z3.BoolVal(True) if ne.kind == "sample" else self.enc_new.asked(new_name)
+                sides.append(("new", ne, asked, self.enc_new.answered(new_name)))
+            side = next((s for s in sides if z3.is_true(ev(s[2]))), None)
+            if side is None:
+                continue
+            which, entry, _asked, answered = side
+            if not z3.is_true(ev(answered)):
+                out[new_name] = NO_ANSWER
+                continue
+            q = self.q_old if which == "old" else self.q_new
+            kind = entry.stmt.type.kind
+            if kind == "text":
+                out[new_name] = ANSWERED
+            elif kind == "multi":
+                table = _labels(q, entry)
+                chosen = [
+                    lb for lb, v in table.items()
+                    if z3.is_true(ev(self.enc_old.option(key, v) if which == "old" else self.new_var_option(new_name, v)))
+                ]
+                out[new_name] = ", ".join(chosen)
+            else:
+                var = self.enc_old.value(key) if which == "old" else self.new_var_value(new_name)
+                raw = ev(var)
+                if kind == "single":
+                    number = raw.as_long()
+                    labels = {v: lb for lb, v in _labels(q, entry).items()}
+                    out[new_name] = labels.get(number, str(number))
+                elif z3.is_int_value(raw):
+                    out[new_name] = str(raw.as_long())
+                else:
+                    out[new_name] = raw.as_decimal(6).rstrip("?")
+        return out

@@ -1,0 +1,159 @@
+"""`diff` on versions with known changes; witnesses re-checked by an independent router."""
+
+from __future__ import annotations
+
+import itertools
+import json
+import subprocess
+import sys
+
+import pytest
+
+from logiccheck.diff import diff_questionnaires
+from logiccheck.load import load_file, load_text
+from tests.conftest import ROOT
+from tests.diff_oracle import Router, parse_witness
+
+DATA = ROOT / "tests" / "data" / "diff"
+
+
+def _diff(new: str, old: str = "wave1"):  # type: ignore[no-untyped-def]
+    a = load_file(DATA / f"{old}.qlc").questionnaire
+    b = load_file(DATA / f"{new}.qlc").questionnaire
+    return a, b, diff_questionnaires(a, b)
+
+
+def _kinds(result) -> list[tuple[str, str | None]]:  # type: ignore[no-untyped-def]
+    return [(c.kind, c.item) for c in result.changes]
+
+
+@pytest.mark.parametrize(
+    ("new", "expected"),
+    [
+        ("recode", [("recode", "freq")]),
+        ("reworded", [("wording-changed", "ebike")]),
+        ("tightened", [("routing-changed", "range_ok")]),
+        ("demorgan", [("routing-equivalent", "helmet")]),
+        (
+            "all_four",
+            [("recode", "freq"), ("wording-changed", "ebike"), ("routing-changed", "range_ok"), ("routing-equivalent", "helmet")],
+        ),
+        ("renamed", [("item-renamed", "rode_ebike"), ("item-added", "parking"), ("item-removed", "purpose_other")]),
+        ("wave1", []),
+    ],
+)
+def test_reports_exactly_the_known_changes(new: str, expected: list) -> None:
+    _, _, result = _diff(new)
+    assert _kinds(result) == expected
+
+
+def test_recode_names_the_moved_labels() -> None:
+    _, _, result = _diff("recode")
+    (change,) = result.changes
+    assert change.impact == "break"
+    assert change.details["moved"] == ["`weekly` 2 → 3", "`monthly` 3 → 2"]
+
+
+def test_tightened_gate_witness_is_really_routed_differently() -> None:
+    old, new, result = _diff("tightened")
+    (change,) = [c for c in result.changes if c.kind == "routing-changed"]
+    assert change.asked_in == "old"
+    a = Router(old, parse_witness(old, change.witness)).asked["range_ok"]
+    b = Router(new, parse_witness(new, change.witness)).asked["range_ok"]
+    assert (a, b) == (True, False)
+    # The witness is a real respondent: past the age screen, under the new age limit.
+    assert 16 <= float(change.witness["age"]) < 18
+
+
+def test_renamed_item_keeps_routing_of_items_reading_it() -> None:
+    _, _, result = _diff("renamed")
+    assert result.routing_same == result.compared == 14
+    renamed = next(c for c in result.changes if c.kind == "item-renamed")
+    assert renamed.old_name == "ebike"
+
+
+HEAD = """survey t "T"
+codes yesno
+  yes = 1 "Yes"
+  no = 2 "No"
+nonresponse
+  dk = 98 "Don't know"
+a: single yesno "A?"
+b: single yesno "B?"
+n: number 0..5 "N?"
+"""
+LABELS = [None, "yes", "no", "dk"]
+
+
+def _brute(old_cond: str, new_cond: str) -> tuple[bool, object]:
+    """Every respondent over a tiny spec: does `z` get asked alike? (exhaustive oracle)."""
+    old = load_text(HEAD + f'z: text "Z?" when {old_cond}\n', "old.qlc").questionnaire
+    new = load_text(HEAD + f'z: text "Z?" when {new_cond}\n', "new.qlc").questionnaire
+    for a, b, num in itertools.product(LABELS, LABELS, [None, 0, 1, 2, 3, 4, 5, 98]):
+        answers = {"a": a, "b": b, "n": num}
+        if Router(old, answers).asked["z"] != Router(new, answers).asked["z"]:
+            return False, (old, new)
+    return True, (old, new)
+
+
+# Expected verdicts worked by hand from DESIGN §3 (Kleene logic; dk is a real value that
+# `=`/`!=` see, ordering on it is unknown); the exhaustive router confirms each one.
+@pytest.mark.parametrize(
+    ("old_cond", "new_cond", "same"),
+    [
+        ("not (a = yes or b = yes)", "a != yes and b != yes", True),  # De Morgan
+        ("not (a = yes or b = yes)", "a = no and b = no", False),  # differs on dk
+        ("not (a = yes and b = yes)", "not a = yes or not b = yes", True),  # De Morgan
+        ("a = yes and b = yes", "b = yes and a = yes", True),
+        ("n >= 2", "not (n < 2)", True),  # unknown on blank and on dk either way
+        ("n >= 2", "n in 2..5", True),
+        ("n >= 2", "n != 0 and answered(n)", False),  # differs for n = 1 and n = dk
+        ("answered(a)", "a in (yes, no, dk)", True),
+        ("a = yes", "a != no", False),  # differs on dk
+    ],
+)
+def test_solver_verdict_agrees_with_exhaustive_routing(old_cond: str, new_cond: str, same: bool) -> None:
+    brute_same, (old, new) = _brute(old_cond, new_cond)
+    assert brute_same == same
+    result = diff_questionnaires(old, new)
+    routing = [c for c in result.changes if c.kind.startswith("routing")]
+    if same:
+        assert [c.kind for c in routing] in ([], ["routing-equivalent"])
+        assert result.routing_same == result.compared
+    else:
+        (change,) = routing
+        assert change.kind == "routing-changed"
+        asked = (
+            Router(old, parse_witness(old, change.witness)).asked["z"],
+            Router(new, parse_witness(new, change.witness)).asked["z"],
+        )
+        assert asked == ((True, False) if change.asked_in == "old" else (False, True))
+
+
+def _cli(*args: str) -> subprocess.CompletedProcess[str]:
+    return subprocess.run([sys.executable, "-m", "logiccheck", "diff", *args], capture_output=True, text=True, cwd=ROOT, check=False)
+
+
+def test_cli_formats_and_exit_status() -> None:
+    old, new = str(DATA / "wave1.qlc"), str(DATA / "all_four.qlc")
+    proc = _cli(old, new, "--format", "json")
+    assert proc.returncode == 0
+    payload = json.loads(proc.stdout)
+    assert payload["summary"]["routing_changed"] == 1
+    assert [c["kind"] for c in payload["changes"]] == ["recode", "wording-changed", "routing-changed", "routing-equivalent"]
+    assert _cli(old, new, "--fail-on-routing-change").returncode == 1
+    assert _cli(old, str(DATA / "demorgan.qlc"), "--fail-on-routing-change").returncode == 0
+    md = _cli(old, new, "--format", "markdown").stdout
+    assert md.startswith("### Spec changes") and "| 🔴 break | `routing-changed` | `range_ok` |" in md
+    assert "`age` = 16" in md or "`age` = 17" in md
+    text = _cli(old, new, "--color", "never").stdout
+    assert "routing-changed `range_ok`" in text and "witness: " in text
+
+
+def test_cli_unreadable_or_broken_spec_exits_2(tmp_path) -> None:  # type: ignore[no-untyped-def]
+    proc = _cli(str(tmp_path / "missing.qlc"), str(DATA / "wave1.qlc"))
+    assert proc.returncode == 2 and "no such file" in proc.stderr
+    broken = tmp_path / "broken.qlc"
+    broken.write_text('survey s "S"\nage number 0..120 "Age?"\n')
+    proc = _cli(str(DATA / "wave1.qlc"), str(broken))
+    assert proc.returncode == 2 and "broken.qlc:2:" in proc.stderr and proc.stderr.count("\n") == 1
