@@ -126,11 +126,21 @@ class Survey:
     def items(self) -> list[str]:
         return [e.name for e in self.questionnaire.items()]
 
+    def config(self) -> Any:
+        """The configuration `lint` would use for this spec (logiccheck.toml or pyproject.toml
+        above it; defaults for a spec given as text)."""
+        from logiccheck.config import Config, config_for
+
+        return config_for(self.path) if self.path else Config()
+
     def lint(self, *, solver: bool = True, disable: Iterable[str] = ()) -> Diagnostics:
-        """Every spec check (syntax, names, codes, order, routing) as a list."""
+        """Every spec check (syntax, names, codes, order, routing) as a list, with the
+        spec's configuration applied (checks turned off, severities changed)."""
         from logiccheck.checks.runner import run_checks
 
-        out = Diagnostics(run_checks(self.loaded, solver=solver, disable=disable))
+        config = self.config()
+        out = Diagnostics(run_checks(self.loaded, solver=solver, disable=set(disable) | config.disabled,
+                                     severity=config.severity))
         if solver and not disable:
             self._lint = out
         return out
@@ -156,7 +166,8 @@ class Survey:
         except ModuleNotFoundError as err:
             raise StageMissing("validation needs the data stage (logiccheck.data), which this build lacks") from err
         if mapping is None:
-            mapping_obj = data_stage.DataMapping()
+            model = self.config().models.get("data")  # the configuration's [data] table
+            mapping_obj = model if isinstance(model, data_stage.DataMapping) else data_stage.DataMapping()
         elif isinstance(mapping, (str, Path)):
             mapping_obj = data_stage.load_mapping(mapping)
         else:
@@ -164,7 +175,9 @@ class Survey:
         if frame is not None:
             mapping_obj = mapping_obj.model_copy(update={"frame": str(frame)})
         raw = data_stage.validate(self.questionnaire, data, mapping_obj, keep_cells=False)
-        used = {"mapping": mapping_obj.model_dump(exclude_defaults=True) or "defaults (DESIGN §6 layout)"}
+        from logiccheck.report.report_data import settings_used
+
+        used = settings_used(self.config(), mapping_obj)
         used.update(settings or {})
         export = str(data) if isinstance(data, (str, Path)) else None
         return self.validation_view(raw, settings=used, export=export)

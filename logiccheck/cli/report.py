@@ -13,27 +13,26 @@ from logiccheck.report.extra import ReportExtraMissing, require_report_extra
 from logiccheck.report.output import write_atomic
 
 
-def _settings(mapping: Any) -> dict[str, Any]:
-    used = mapping.model_dump(exclude_defaults=True) if mapping is not None else {}
-    return {"mapping": used or "defaults (DESIGN §6 layout)"}
-
-
 def write_html(loaded: Loaded, out: str | None, result: Any = None, mapping: Any = None, *, solver: bool = True) -> str:
     """Lint, gather the validation result (if any) and write the page; '-' or None: stdout."""
+    from logiccheck.config import ConfigError, config_for
+
     try:
         require_report_extra()
         from logiccheck.checks.runner import run_checks
         from logiccheck.report.html import render_html
-        from logiccheck.report.report_data import ReportData, from_validation
+        from logiccheck.report.report_data import ReportData, from_validation, settings_used
 
-        diagnostics = run_checks(loaded, solver=solver)
         q = loaded.questionnaire
+        config = config_for(q.file)  # the same configuration `lint` finds for this spec
+        diagnostics = run_checks(loaded, solver=solver, disable=config.disabled, severity=config.severity)
+        settings = settings_used(config, mapping)
         if result is None:
-            data = ReportData(q, diagnostics)
+            data = ReportData(q, diagnostics, settings=settings)
         else:
-            data = from_validation(q, result, diagnostics, settings=_settings(mapping))
+            data = from_validation(q, result, diagnostics, settings=settings)
         page = render_html(data)
-    except ReportExtraMissing as err:
+    except (ReportExtraMissing, ConfigError) as err:
         fail(str(err))
     if out is None or out == "-":
         click.echo(page, nl=False)
@@ -66,7 +65,7 @@ def report_command(spec: str, data: str | None, map_file: str | None, frame: str
         from logiccheck.cli.validate import load_data_mapping, run_validation
         from logiccheck.data.readers import DEFAULT_CHUNK_ROWS
 
-        mapping = load_data_mapping(map_file, frame)
+        mapping = load_data_mapping(map_file, frame, spec)
         result = run_validation(loaded, data, mapping, encoding, DEFAULT_CHUNK_ROWS, "auto")
     path = write_html(loaded, out, result, mapping, solver=not no_solver)
     click.echo(f"logiccheck: wrote {path}", err=True)

@@ -172,3 +172,18 @@ def from_validation(
         settings=used,
         export=export,
     )
+
+
+def settings_used(config: Any, mapping: Any = None) -> dict[str, Any]:
+    """The thresholds, policy and mapping a run used, as the report lists them.
+
+    `config` is a `logiccheck.config.Config`; `mapping` a `DataMapping` (or None).
+    """
+    out: dict[str, Any] = {"configuration": getattr(config, "source", None) or "none found (defaults)"}
+    if mapping is not None:
+        out["mapping"] = mapping.model_dump(exclude_defaults=True) or "defaults (DESIGN §6 layout)"
+    for table in ("checks", "quality", "clean"):
+        value = getattr(config, table, None)
+        if value:
+            out[table] = dict(value)
+    return out

@@ -224,3 +224,22 @@ def test_survey_report_without_data(tmp_path) -> None:
     path = logiccheck.load("specs/bikeshare.qlc").report(tmp_path / "spec.html")
     page = parse(path.read_text(encoding="utf-8"))
     assert "routing" in page.ids and "item-table" not in page.ids
+
+
+def test_report_uses_and_lists_the_spec_configuration(tmp_path) -> None:
+    spec = tmp_path / "typo.qlc"
+    spec.write_text('survey t "T"\n\ncodes yesno\n  yes = 1 "Yes"\n  no = 2 "No"\n\n'
+                    'q1: single yesno "A?"\nq2: text "B?" when q_one = yes\n', encoding="utf-8")
+    (tmp_path / "logiccheck.toml").write_text('[checks]\nunknown-name = "warning"\n', encoding="utf-8")
+    out = tmp_path / "r.html"
+    result = CliRunner().invoke(cli, ["report", str(spec), "--out", str(out)])
+    assert result.exit_code == 0, result.output
+    html = out.read_text(encoding="utf-8")
+    text = "".join(parse(html).text)
+    assert "logiccheck.toml" in text and "checks.unknown-name" in text
+    # the same severity `lint` gives with this configuration
+    import logiccheck
+
+    diags = logiccheck.load(spec).lint()
+    assert [d.severity.value for d in diags if d.check == "unknown-name"] == ["warning"]
+    assert 'sev-warning">warning</span> <strong>unknown-name' in html
