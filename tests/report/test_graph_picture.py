@@ -194,3 +194,20 @@ def test_large_generated_spec_is_split_and_stays_readable() -> None:
     boxes = _text_boxes(biggest.figure)
     for (a, ea), (b, eb) in itertools.combinations(boxes, 2):
         assert not ea.overlaps(eb), f"labels overlap: {a!r} and {b!r}"
+
+
+@pytest.mark.parametrize("spec", sorted(p.name for p in __import__("pathlib").Path("specs").rglob("*.qlc")))
+def test_every_demo_spec_draws(spec) -> None:
+    # Faulty specs too: a picture of what could be read, never a crash.
+    from pathlib import Path
+
+    from logiccheck.checks.runner import run_checks
+
+    path = next(Path("specs").rglob(spec))
+    loaded = load_file(path)
+    pictures = routing_pictures(loaded.questionnaire, run_checks(loaded, solver=False))
+    drawn = set().union(*(p.boxes for p in pictures))
+    q = loaded.questionnaire
+    items = {f"n_{e.name}" for e in q.items() if q.symbols.get(e.name) is e}
+    assert items and items <= drawn  # every item that resolved has its box
+    assert figure_bytes(pictures[0].figure, "svg").startswith(b"<?xml")
