@@ -38,23 +38,21 @@ BOX_STYLE: dict[str, tuple[str, str]] = {
     "sample": ("#e9eef2", "#55616b"),
     "stop": ("#fde4e1", "#b3261e"),
     "skip": ("#ffffff", "#333333"),
-    "check": ("#f2f2f2", "#777777"),
 }
 KIND_LABEL = {
     "item": "item", "gate": "gate", "row": "grid row", "let": "derived value",
-    "sample": "sample variable", "stop": "stop", "skip": "skip", "check": "edit rule",
+    "sample": "sample variable", "stop": "stop", "skip": "skip",
 }
 EDGE_STYLE: dict[str, tuple[str, str]] = {  # via -> (colour, line style)
     "condition": ("#1f4e8c", "-"),
     "context": ("#7a3e9d", "-"),
     "let": ("#2e7d32", "-"),
     "pipe": ("#d17a00", "--"),
-    "check": ("#8a8a8a", ":"),
     "skip": ("#222222", "--"),
 }
 EDGE_LABEL = {
     "condition": "condition reads", "context": "section condition reads", "let": "derived from",
-    "pipe": "piped into text", "check": "edit rule reads", "skip": "skip lands on",
+    "pipe": "piped into text", "skip": "skip lands on",
 }
 UNREACHABLE = ("#dddddd", "#999999")
 
@@ -198,13 +196,14 @@ def draw_picture(picture: FlowPicture, name: str = "", *, legend: bool = True) -
                                      linewidth=1.0, alpha=0.75, zorder=2))
 
     handles: list[Any] = []
-    kinds = sorted({node.kind for node in picture.nodes.values()}, key=list(BOX_STYLE).index)
+    # Only kinds and arrows this module styles get a legend entry (others draw as items).
+    kinds = [k for k in BOX_STYLE if any(node.kind == k for node in picture.nodes.values())]
     for kind in kinds:
         face, edge_c = BOX_STYLE[kind]
         handles.append(Patch(facecolor=face, edgecolor=edge_c, label=KIND_LABEL[kind]))
     if any(node.unreachable for node in picture.nodes.values()):
         handles.append(Patch(facecolor=UNREACHABLE[0], edgecolor=UNREACHABLE[1], hatch="///", label="unreachable"))
-    for via in sorted({e.via for e in picture.edges}, key=list(EDGE_STYLE).index):
+    for via in [v for v in EDGE_STYLE if any(e.via == v for e in picture.edges)]:
         colour, line = EDGE_STYLE[via]
         handles.append(Line2D([], [], color=colour, linestyle=line, label=EDGE_LABEL[via]))
     if handles and legend:
