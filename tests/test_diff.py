@@ -40,6 +40,15 @@ def _kinds(result) -> list[tuple[str, str | None]]:  # type: ignore[no-untyped-d
         ),
         ("renamed", [("item-renamed", "rode_ebike"), ("item-added", "parking"), ("item-removed", "purpose_other")]),
         ("wave1", []),
+        ("editrule", [("check-equivalent", "daily_needs_trips")]),
+        (
+            "screenout",
+            [("stop-changed", "underage")]
+            + [("routing-changed", x) for x in (
+                "used", "freq", "trips", "purpose", "purpose_other", "ebike", "range_ok", "helmet",
+                "dock_find", "dock_app", "dock_safe", "praise", "why_not", "overall")]
+            + [("check-changed", "daily_needs_trips")],
+        ),
     ],
 )
 def test_reports_exactly_the_known_changes(new: str, expected: list) -> None:
@@ -157,3 +166,21 @@ def test_cli_unreadable_or_broken_spec_exits_2(tmp_path) -> None:  # type: ignor
     broken.write_text('survey s "S"\nage number 0..120 "Age?"\n')
     proc = _cli(str(DATA / "wave1.qlc"), str(broken))
     assert proc.returncode == 2 and "broken.qlc:2:" in proc.stderr and proc.stderr.count("\n") == 1
+
+
+def test_every_screenout_witness_is_routed_as_claimed() -> None:
+    # A tightened screen-out: each witness, run through both versions by the independent
+    # router, is asked / screened out / fails the rule in exactly the version claimed.
+    old, new, result = _diff("screenout")
+    assert result.changes
+    for change in result.changes:
+        runs = {"old": Router(old, parse_witness(old, change.witness)), "new": Router(new, parse_witness(new, change.witness))}
+        if change.kind == "routing-changed":
+            got = {side: r.asked[change.item] for side, r in runs.items()}
+        elif change.kind == "stop-changed":
+            got = {side: change.item in r.fired for side, r in runs.items()}
+        else:
+            assert change.kind == "check-changed"
+            got = {side: change.item in r.failed for side, r in runs.items()}
+        other = "new" if change.asked_in == "old" else "old"
+        assert got == {change.asked_in: True, other: False}, change

@@ -67,17 +67,23 @@ def _refs(expr: Any) -> set[str]:
     return names
 
 
-def support(q: Questionnaire, name: str) -> set[str]:
-    """Every name whose value or routing can decide whether `name` is asked."""
+def support(q: Questionnaire, start: str | Entry) -> set[str]:
+    """Every name whose value or routing can decide whether `start` (a name, or a
+    statement such as a stop or check) is asked, fires or fails."""
     seen: set[str] = set()
-    todo = [name]
+    todo: list[str | Entry] = [start]
     while todo:
         current = todo.pop()
-        entry = q.symbols.get(current)
-        if entry is None or current in seen:
+        entry = q.symbols.get(current) if isinstance(current, str) else current
+        if entry is None:
             continue
-        seen.add(current)
+        if isinstance(current, str):
+            if current in seen:
+                continue
+            seen.add(current)
         exprs = list(entry.conditions()) if entry.kind != "let" else [entry.own]
+        if entry.require is not None:
+            exprs.append(entry.require)
         stops, skips = q.guards(entry)
         for guard in (*stops, *skips):
             exprs.extend(guard.conditions())
@@ -205,23 +211,36 @@ class CrossVersion:
             self._solver.add(*self.facts)
         return self._solver
 
-    def _opaque(self, q: Questionnaire, enc: Encoding, name: str) -> str | None:
-        for dep in support(q, name):
+    def _opaque(self, q: Questionnaire, enc: Encoding, start: Entry) -> str | None:
+        if start.index in enc.unencodable:
+            return "its conditions cannot be read"
+        for dep in support(q, start):
             entry = q.symbols.get(dep)
             if entry is not None and entry.index in enc.unencodable:
                 return f"the conditions of `{dep}` cannot be read"
-        guards = q.guards(q.symbols[name])
+        guards = q.guards(start)
         if any(g.index in enc.unencodable for g in (*guards[0], *guards[1])):
             return "an earlier stop or skip cannot be read"
         return None
 
     def compare(self, old_name: str, new_name: str, timeout_ms: int = 20000) -> RoutingResult:
-        why = self._opaque(self.q_old, self.enc_old, old_name) or self._opaque(self.q_new, self.enc_new, new_name)
+        """Is the item asked of the same respondents in both versions?"""
+        e_old, e_new = self.q_old.symbols[old_name], self.q_new.symbols[new_name]
+        return self._query(e_old, e_new, self.enc_old.asked, self.enc_new.asked, timeout_ms)
+
+    def compare_statement(self, e_old: Entry, e_new: Entry, timeout_ms: int = 20000) -> RoutingResult:
+        """A stop: does it fire for the same respondents? A check: does it fail for them?"""
+        if e_old.kind == "stop":
+            return self._query(e_old, e_new, self.enc_old.fires, self.enc_new.fires, timeout_ms)
+        return self._query(e_old, e_new, self.enc_old.fails, self.enc_new.fails, timeout_ms)
+
+    def _query(self, e_old: Entry, e_new: Entry, f_old: Any, f_new: Any, timeout_ms: int) -> RoutingResult:
+        why = self._opaque(self.q_old, self.enc_old, e_old) or self._opaque(self.q_new, self.enc_new, e_new)
         if why is not None:
             return RoutingResult(same=False, error=why)
         try:
-            a_old = self.enc_old.asked(old_name)
-            a_new = self.enc_new.asked(new_name)
+            a_old = f_old(e_old.name if e_old.kind == "item" else e_old)
+            a_new = f_new(e_new.name if e_new.kind == "item" else e_new)
         except (EncodingError, KeyError) as err:
             return RoutingResult(same=False, error=str(err))
         solver = self._get_solver(timeout_ms)
@@ -236,10 +255,9 @@ class CrossVersion:
             return RoutingResult(same=True)
         if model is None:
             return RoutingResult(same=False, error="the solver gave up (timeout)")
-        names = support(self.q_old, old_name) | {
-            self.new_to_old.get(x, x) for x in support(self.q_new, new_name)
-        }
-        names.discard(old_name)
+        names = support(self.q_old, e_old) | {self.new_to_old.get(x, x) for x in support(self.q_new, e_new)}
+        if e_old.kind == "item":
+            names.discard(e_old.name)
         return RoutingResult(
             same=False,
             witness=self._witness(model, names),
