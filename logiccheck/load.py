@@ -2,6 +2,9 @@
 
 from __future__ import annotations
 
+import gc
+from collections.abc import Iterator
+from contextlib import contextmanager
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -44,10 +47,25 @@ def read_spec_text(path: str | Path) -> str:
         ) from None
 
 
+@contextmanager
+def gc_paused() -> Iterator[None]:
+    """Pause the cyclic garbage collector while building many small objects that all stay
+    alive (parse tree, nodes): its repeated scans of them cost a third of the load time
+    of a large spec and free nothing. Reference counting still frees as usual."""
+    was_enabled = gc.isenabled()
+    gc.disable()
+    try:
+        yield
+    finally:
+        if was_enabled:
+            gc.enable()
+
+
 def load_text(text: str, file: str = "<spec>") -> Loaded:
-    parsed = parse_text(text, file)
-    spec, built = build_spec(parsed.tree, file)
-    questionnaire = resolve(spec, parsed.text)
+    with gc_paused():
+        parsed = parse_text(text, file)
+        spec, built = build_spec(parsed.tree, file)
+        questionnaire = resolve(spec, parsed.text)
     return Loaded(questionnaire, sorted(parsed.diagnostics + built, key=Diagnostic.sort_key))
 
 

@@ -32,6 +32,7 @@ PLANTED = {
     "trips_typo": "invalid-value",  # "3O" typed with a letter O
     "overall": "after-stop",  # an under-age respondent who answered on
     "why_not": "out-of-path",  # a rider answering the lapsed-riders question
+    "purpose_other": "out-of-path",  # text kept after "other" was unticked (4 riders)
 }
 
 
@@ -62,6 +63,9 @@ def build() -> pd.DataFrame:
     row = pick()
     frame.loc[row, "why_not_2"] = "1"
     frame.loc[row, ["why_not_1", "why_not_3"]] = ["0", "0"]
+    for _ in range(4):
+        row = pick((frame["purpose_4"] == "0") & frame["purpose_other"].isna())
+        frame.loc[row, "purpose_other"] = "to the gym"
     young = frame.index[frame["age"].astype("Int64").lt(16).fillna(False)]
     frame.loc[young[0], ["used", "overall"]] = ["2", "7"]
     return frame

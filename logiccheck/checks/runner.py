@@ -8,7 +8,7 @@ from logiccheck.checks.context import LintContext
 from logiccheck.checks.registry import all_checks
 from logiccheck.checks.suppress import apply_suppressions
 from logiccheck.diagnostics import Diagnostic, Severity, Span
-from logiccheck.load import Loaded
+from logiccheck.load import Loaded, gc_paused
 
 STAGE_ORDER = ("spec", "routing")
 
@@ -43,7 +43,12 @@ def run_checks(
             if info.stage != stage or info.run is None or info.name in disabled:
                 continue
             try:
-                out.extend(info.run(ctx))
+                if stage == "spec":
+                    # Static checks build the graph and many small records; see gc_paused.
+                    with gc_paused():
+                        out.extend(info.run(ctx))
+                else:
+                    out.extend(info.run(ctx))
             except Exception as err:  # noqa: BLE001 - reported as a diagnostic instead
                 out.append(
                     Diagnostic(

@@ -175,12 +175,14 @@ def _plant(
     out: list[tuple[str, str, int]] = []
     for row in np.flatnonzero(rng.random(rows) < rate).tolist():
         plan = items[int(rng.integers(0, len(items)))]
+        if not plan.columns:
+            continue
         d = bool(due[plan.name][row])
         col = plan.columns[0]
         if not d:
             # An answer the routing did not ask for.
             if plan.kind == "multi":
-                j = int(rng.integers(0, len(plan.columns))) if plan.columns else 0
+                j = int(rng.integers(0, len(plan.columns)))
                 for jj, c in enumerate(plan.columns):
                     drawer.out[c][row] = 1.0 if jj == j else 0.0
                 out.append((col, "out-of-path", row))
@@ -196,7 +198,7 @@ def _plant(
                 out.append((col, "invalid-code", row))
             else:
                 out.append((col, "not-a-number", row))
-        elif plan.kind == "multi" and plan.columns:
+        elif plan.kind == "multi":
             drawer.out[plan.columns[0]][row] = 2.0
             out.append((col, "invalid-code", row))
     del q
@@ -231,7 +233,7 @@ def write_csv(table: pa.Table, path: str | Path) -> None:
 
 
 def write_faults(faults: list[tuple[int, str, str, str]], path: str | Path) -> None:
-    rows = list(zip(*faults)) if faults else [[], [], [], []]
+    rows = list(zip(*faults, strict=True)) if faults else [[], [], [], []]
     table = pa.table(
         {
             "row": pa.array(rows[0], pa.int64()),

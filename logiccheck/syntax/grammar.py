@@ -41,13 +41,17 @@ class SpecIndenter(Indenter):
             yield type(token).new_borrow_pos(self.DEDENT_type, "", token)
 
 
-def grammar_text() -> str:
-    """The grammar source: from the installed package, else from the checkout."""
+def grammar_location() -> str:
+    """Where the grammar is read from: inside the installed package, else the checkout."""
     packaged = resources.files("logiccheck") / "_grammar" / GRAMMAR_NAME
     if packaged.is_file():
-        return packaged.read_text(encoding="utf-8")
-    checkout = Path(__file__).resolve().parents[2] / "grammar" / GRAMMAR_NAME
-    return checkout.read_text(encoding="utf-8")
+        return str(packaged)
+    return str(Path(__file__).resolve().parents[2] / "grammar" / GRAMMAR_NAME)
+
+
+def grammar_text() -> str:
+    """The grammar source (see `grammar_location`)."""
+    return Path(grammar_location()).read_text(encoding="utf-8")
 
 
 @functools.lru_cache(maxsize=1)

@@ -219,6 +219,8 @@ def _found(token: object) -> str:
         return "a line that is indented less"
     if kind == "$END" or value == "":
         return "the end of the file"
+    if len(value) > 24:
+        value = value[:20] + "…" + value[-1]
     return f"`{value}`"
 
 
@@ -263,8 +265,11 @@ def _error_to_diagnostic(err: Exception, text: str, file: str) -> tuple[Diagnost
         message = f"this `{err.token}` closes nothing; remove it, or add the opening bracket"
     elif isinstance(err, UnexpectedToken):
         message = f"unexpected {_found(err.token)}; expected {_describe(set(err.expected))}"
-        hint = _type_word_hint(err) or _hint(err)
-        if hint:
+        type_hint = _type_word_hint(err)
+        hint = None if type_hint else _hint(err)
+        if type_hint:
+            message = type_hint
+        elif hint:
             message = f"{hint} ({message})"
     elif isinstance(err, DedentError):
         message = "this line's indentation does not match any enclosing block"

@@ -81,7 +81,14 @@ def _report(ctx: LintContext, graph: nx.DiGraph, found: list[list[str]], truncat
         reads = [_first_read(graph, a, b) for a, b in edges]
         names = [_label(graph, x) for x in cycle]
         path = " → ".join(f"`{x}`" for x in [*names, names[0]])
-        if len(cycle) == 1:
+        if len(cycle) == 1 and reads[0].via == "context":
+            owner = reads[0].owner
+            word = "grid" if getattr(owner, "rows", None) is not None else "section"
+            message = (
+                f"`{names[0]}` is inside {word} `{owner.name}`, whose condition reads `{names[0]}`: "
+                f"it can only be asked once it is answered ({path})"
+            )
+        elif len(cycle) == 1:
             message = f"`{names[0]}` depends on itself: {path}"
         else:
             message = f"{len(cycle)} statements read each other in a loop: {path}"
