@@ -4,13 +4,12 @@ from __future__ import annotations
 
 import itertools
 import json
-import subprocess
-import sys
 
 import pytest
 
 from logiccheck.diff import diff_questionnaires
 from logiccheck.load import load_file, load_text
+from tests.cli_run import Ran, run_cli
 from tests.conftest import ROOT
 from tests.diff_oracle import Router, parse_witness
 
@@ -139,8 +138,8 @@ def test_solver_verdict_agrees_with_exhaustive_routing(old_cond: str, new_cond: 
         assert asked == ((True, False) if change.asked_in == "old" else (False, True))
 
 
-def _cli(*args: str) -> subprocess.CompletedProcess[str]:
-    return subprocess.run([sys.executable, "-m", "logiccheck", "diff", *args], capture_output=True, text=True, cwd=ROOT, check=False)
+def _cli(*args: str) -> Ran:
+    return run_cli("diff", *args)
 
 
 def test_cli_formats_and_exit_status() -> None:
