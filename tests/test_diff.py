@@ -40,6 +40,7 @@ def _kinds(result) -> list[tuple[str, str | None]]:  # type: ignore[no-untyped-d
         ("renamed", [("item-renamed", "rode_ebike"), ("item-added", "parking"), ("item-removed", "purpose_other")]),
         ("wave1", []),
         ("editrule", [("check-equivalent", "daily_needs_trips")]),
+        ("gridstem", [("flags-changed", "used"), ("wording-changed", "docks"), ("flags-changed", "docks")]),
         (
             "screenout",
             [("stop-changed", "underage")]

@@ -186,6 +186,9 @@ def diff_questionnaires(old: Questionnaire, new: Questionnaire, *, routing: bool
                 _change("wording-changed", name, f"`{name}` text was \"{oe.stmt.text}\", is now \"{ne.stmt.text}\"",
                         old=oe.stmt.text_span, new=ne.stmt.text_span)
             )
+        flags = _flag_changes(oe, ne)
+        if flags:
+            changes.append(_change("flags-changed", name, f"`{name}`: " + ", ".join(flags), **{"old": oe.span, "new": ne.span}))
         if cross is None:
             continue
         result.compared += 1
@@ -207,10 +210,16 @@ def diff_questionnaires(old: Questionnaire, new: Questionnaire, *, routing: bool
                         f"`{name}`: a respondent is asked it in the {side} version and not in the {other}",
                         witness=verdict.witness, asked_in=side, **where)
             )
+    changes.extend(_grid_changes(old, new))
     changes.extend(_statement_changes(old, new, cross, rename))
     order = {name: i for i, name in enumerate(list(new_items) + [k for k in old_items if k not in new_items])}
     # Screen-outs first (they explain the routing changes after them), edit rules last.
+    grid_first = {g: min((i for i, e in enumerate(new_items.values()) if e.grid is not None and e.grid.name == g), default=-1)
+                  for g in new.grids}
+
     def rank(c: Change) -> float:
+        if c.item in grid_first and c.item not in order:
+            return grid_first[c.item] - 0.5
         if c.kind.startswith("stop-") or (c.kind == "routing-not-compared" and c.item in stops):
             return -0.5
         if c.kind.startswith("check-") or (c.kind == "routing-not-compared" and c.item in checks):
@@ -259,4 +268,32 @@ def _statement_changes(
                     _change("check-equivalent", name, f"check `{name}` was rewritten; the solver proves it fails "
                             "for the same respondents", **where)
                 )
+    return out
+
+
+FLAG_NAMES = ("required", "strict", "gate", "key")
+
+
+def _flag_changes(oe: Entry, ne: Entry) -> list[str]:
+    out = []
+    for flag in FLAG_NAMES:
+        before, after = getattr(oe.stmt.flags, flag), getattr(ne.stmt.flags, flag)
+        if before != after:
+            out.append(f"now `{flag}`" if after else f"no longer `{flag}`")
+    return out
+
+
+def _grid_changes(old: Questionnaire, new: Questionnaire) -> list[Change]:
+    """A grid's stem is part of every row's wording; `shuffled` changes the order effects."""
+    out = []
+    for name, g in new.grids.items():
+        was = old.grids.get(name)
+        if was is None:
+            continue
+        if was.text != g.text:
+            out.append(_change("wording-changed", name, f"grid `{name}` stem was \"{was.text}\", is now \"{g.text}\"",
+                               old=was.text_span, new=g.text_span))
+        if was.shuffled != g.shuffled:
+            now = "now `shuffled`" if g.shuffled else "no longer `shuffled`"
+            out.append(_change("flags-changed", name, f"grid `{name}`: {now}", old=was.name_span, new=g.name_span))
     return out

@@ -22,6 +22,7 @@ KINDS: dict[str, tuple[Impact, str]] = {
     "option-removed": ("break", "an answer option is gone"),
     "option-reworded": ("caution", "an answer option's text changed"),
     "wording-changed": ("caution", "the question text changed: compare waves with care"),
+    "flags-changed": ("caution", "a flag changed (required, strict, gate, key, shuffled)"),
     "nonresponse-changed": ("caution", "the non-response codes changed"),
     "routing-changed": ("break", "who is asked changed"),
     "routing-equivalent": ("info", "the condition was rewritten; the solver proves it asks the same people"),
