@@ -139,10 +139,17 @@ class Router:
         raise NotImplementedError(type(x).__name__)
 
 
-def parse_witness(q: Questionnaire, witness: dict[str, str], rename: dict[str, str] | None = None) -> dict[str, Any]:
-    """A diff witness as answers for `q` (`rename` maps witness names to q's names)."""
+def parse_witness(
+    q: Questionnaire, witness: dict[str, str], rename: dict[str, str] | None = None, side: str | None = None
+) -> dict[str, Any]:
+    """A diff witness as answers for `q` (`rename` maps witness names to q's names; an
+    item whose type changed is given per version, `NAME (old)` / `NAME (new)`)."""
     out: dict[str, Any] = {}
     for name, text in witness.items():
+        if name.endswith((" (old)", " (new)")):
+            if side is None or not name.endswith(f" ({side})"):
+                continue
+            name = name.rsplit(" ", 1)[0]
         name = (rename or {}).get(name, name)
         e = q.symbols.get(name)
         if e is None or text == "(no answer)":

@@ -184,3 +184,17 @@ def test_every_screenout_witness_is_routed_as_claimed() -> None:
             got = {side: change.item in r.failed for side, r in runs.items()}
         other = "new" if change.asked_in == "old" else "old"
         assert got == {change.asked_in: True, other: False}, change
+
+
+def test_new_option_type_change_and_unreadable_condition() -> None:
+    old, new, result = _diff("edge_new", old="edge_old")
+    assert _kinds(result) == [
+        ("option-added", "a"), ("type-changed", "m"), ("type-changed", "n"),
+        ("routing-changed", "c"), ("routing-not-compared", "d"), ("routing-changed", "e"),
+    ]
+    for change in (c for c in result.changes if c.kind == "routing-changed"):
+        a = Router(old, parse_witness(old, change.witness, side="old")).asked[change.item]
+        b = Router(new, parse_witness(new, change.witness, side="new")).asked[change.item]
+        assert (a, b) == ((True, False) if change.asked_in == "old" else (False, True))
+    # The skip's new reading catches the answer only the new version offers.
+    assert next(c for c in result.changes if c.item == "e").witness == {"a": "maybe"}

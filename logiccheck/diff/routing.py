@@ -268,51 +268,59 @@ class CrossVersion:
     # ------------------------------------------------------------ witnesses
     def _witness(self, model: z3.ModelRef, old_names: set[str]) -> dict[str, str]:
         """The answers the respondent would give, named as the new version names them;
-        items asked in neither version are left out (their answers cannot matter)."""
+        items asked in neither version are left out (their answers cannot matter). An
+        item whose type changed has two answers, `NAME (old)` and `NAME (new)`."""
+        old_vals, new_vals = _valued(self.q_old), _valued(self.q_new)
+        order = {name: i for i, name in enumerate([e.name for e in self.q_new.entries])}
+        out: dict[str, str] = {}
+        for key in sorted(old_names, key=lambda k: order.get(self.old_to_new.get(k, k), -1)):
+            new_name = self.old_to_new.get(key, key)
+            oe, ne = old_vals.get(key), new_vals.get(new_name)
+            sides = []
+            if oe is not None:
+                sides.append(("old", oe, key))
+            if ne is not None:
+                sides.append(("new", ne, new_name))
+            if len(sides) == 2 and oe.stmt.type.kind != ne.stmt.type.kind:
+                for which, entry, name in sides:
+                    shown = self._answer(model, which, entry, name, key)
+                    if shown is not None:
+                        out[f"{new_name} ({which})"] = shown
+                continue
+            # Read the answer from a version that asks the item (or a sample variable).
+            for which, entry, name in sides:
+                shown = self._answer(model, which, entry, name, key)
+                if shown is not None:
+                    out[new_name] = shown
+                    break
+        return out
+
+    def _answer(self, model: z3.ModelRef, which: str, entry: Entry, name: str, key: str) -> str | None:
+        """The answer in one version, or None where that version does not ask it."""
         def ev(x: Any) -> Any:
             return model.eval(x, model_completion=True)
 
-        old_vals, new_vals = _valued(self.q_old), _valued(self.q_new)
-        order = [e.name for e in self.q_new.entries] + [e.name for e in self.q_old.entries]
-        out: dict[str, str] = {}
-        for key in sorted(old_names, key=lambda k: order.index(self.old_to_new.get(k, k)) if self.old_to_new.get(k, k) in order else 0):
-            new_name = self.old_to_new.get(key, key)
-            oe, ne = old_vals.get(key), new_vals.get(new_name)
-            # Read the answer from a version that asks the item (or a sample variable).
-            sides = []
-            if oe is not None:
-                asked = z3.BoolVal(True) if oe.kind == "sample" else self.enc_old.asked(key)
-                sides.append(("old", oe, asked, self.enc_old.answered(key)))
-            if ne is not None:
-                asked = z3.BoolVal(True) if ne.kind == "sample" else self.enc_new.asked(new_name)
-                sides.append(("new", ne, asked, self.enc_new.answered(new_name)))
-            side = next((s for s in sides if z3.is_true(ev(s[2]))), None)
-            if side is None:
-                continue
-            which, entry, _asked, answered = side
-            if not z3.is_true(ev(answered)):
-                out[new_name] = NO_ANSWER
-                continue
-            q = self.q_old if which == "old" else self.q_new
-            kind = entry.stmt.type.kind
-            if kind == "text":
-                out[new_name] = ANSWERED
-            elif kind == "multi":
-                table = _labels(q, entry)
-                chosen = [
-                    lb for lb, v in table.items()
-                    if z3.is_true(ev(self.enc_old.option(key, v) if which == "old" else self.new_var_option(new_name, v)))
-                ]
-                out[new_name] = ", ".join(chosen)
-            else:
-                var = self.enc_old.value(key) if which == "old" else self.new_var_value(new_name)
-                raw = ev(var)
-                if kind == "single":
-                    number = raw.as_long()
-                    labels = {v: lb for lb, v in _labels(q, entry).items()}
-                    out[new_name] = labels.get(number, str(number))
-                elif z3.is_int_value(raw):
-                    out[new_name] = str(raw.as_long())
-                else:
-                    out[new_name] = raw.as_decimal(6).rstrip("?")
-        return out
+        enc = self.enc_old if which == "old" else self.enc_new
+        if entry.kind != "sample" and not z3.is_true(ev(enc.asked(name))):
+            return None
+        if not z3.is_true(ev(enc.answered(name))):
+            return NO_ANSWER
+        q = self.q_old if which == "old" else self.q_new
+        kind = entry.stmt.type.kind
+        if kind == "text":
+            return ANSWERED
+        if kind == "multi":
+            def chosen(v: int) -> Any:
+                return self.enc_old.option(name, v) if which == "old" else self.new_var_option(name, v)
+
+            return ", ".join(lb for lb, v in _labels(q, entry).items() if z3.is_true(ev(chosen(v))))
+        raw = ev(self.enc_old.value(name) if which == "old" else self.new_var_value(name))
+        if kind == "single" and key in self._label_vars:
+            choice, labels = self._label_vars[key]
+            return labels[ev(choice).as_long()]
+        if kind == "single":
+            labels_by_value = {v: lb for lb, v in _labels(q, entry).items()}
+            return labels_by_value.get(raw.as_long(), str(raw.as_long()))
+        if z3.is_int_value(raw):
+            return str(raw.as_long())
+        return raw.as_decimal(6).rstrip("?")
