@@ -198,3 +198,17 @@ def test_new_option_type_change_and_unreadable_condition() -> None:
         assert (a, b) == ((True, False) if change.asked_in == "old" else (False, True))
     # The skip's new reading catches the answer only the new version offers.
     assert next(c for c in result.changes if c.item == "e").witness == {"a": "maybe"}
+
+
+def test_markdown_caps_rows_but_json_keeps_all() -> None:
+    from logiccheck.report.diff_markdown import MAX_ROWS, diff_markdown
+
+    head = 'survey s "S"\ncodes yesno\n  yes = 1 "Yes"\n  no = 2 "No"\nage: number 0..120 "Age?" strict\n'
+    body = "".join(f'q{i}: single yesno "Q{i}?"\n' for i in range(MAX_ROWS + 20))
+    old = load_text(head + body, "old.qlc").questionnaire
+    new = load_text(head + 'stop young "Too young" when age < 10\n' + body, "new.qlc").questionnaire
+    result = diff_questionnaires(old, new)
+    assert len(result.changes) == MAX_ROWS + 21  # the stop, and every item after it
+    md = diff_markdown(result)
+    assert md.count("| 🔴 break |") == MAX_ROWS and "… and 21 more changes" in md
+    assert len(result.to_json()["changes"]) == MAX_ROWS + 21
