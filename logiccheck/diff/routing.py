@@ -92,6 +92,29 @@ def support(q: Questionnaire, start: str | Entry) -> set[str]:
     return seen
 
 
+def cone(q: Questionnaire, start: Entry) -> set[int]:
+    """The statements whose constraints can bear on `start`: those its conditions read
+    (and what theirs read), and the stops and skips before each of them."""
+    seen: set[int] = set()
+    todo = [start]
+    while todo:
+        entry = todo.pop()
+        if entry.index in seen:
+            continue
+        seen.add(entry.index)
+        exprs = list(entry.conditions()) if entry.kind != "let" else [entry.own]
+        if entry.require is not None:
+            exprs.append(entry.require)
+        stops, skips = q.guards(entry)
+        todo.extend(g for g in (*stops, *skips) if g.index not in seen)
+        for expr in exprs:
+            for name in _refs(expr):
+                ref = q.symbols.get(name)
+                if ref is not None and ref.index not in seen:
+                    todo.append(ref)
+    return seen
+
+
 class CrossVersion:
     """Both versions over one respondent; `compare(old_name, new_name)` per item."""
 
@@ -105,7 +128,6 @@ class CrossVersion:
         self._renamed_vars: dict[str, Any] = {}
         self._label_vars: dict[str, tuple[Any, list[str]]] = {}
         self._build()
-        self._solver: z3.Solver | None = None
 
     # ------------------------------------------------------------ the shared respondent
     def _apart(self, var: Any) -> Any:
@@ -129,12 +151,13 @@ class CrossVersion:
                     self._apart(self.enc_new.option(name, value))
         linked_old: set[int] = set()
         linked_new: set[int] = set()
-        links: list[Any] = []
+        self._by_key: dict[str, list[Any]] = {}
         for new_name, ne in new_vals.items():
             old_name = self.new_to_old.get(new_name, new_name)
             oe = old_vals.get(old_name)
             if oe is None or oe.stmt.type.kind != ne.stmt.type.kind or oe.kind != ne.kind:
                 continue  # nothing to link: a new item, or a type change
+            links = self._by_key.setdefault(old_name, [])
             kind = ne.stmt.type.kind
             if kind == "text":
                 pass
@@ -165,16 +188,18 @@ class CrossVersion:
                 ask_o, ask_n = self.enc_old.asked(old_name), self.enc_new.asked(new_name)
                 ans_o, ans_n = self.enc_old.answered(old_name), self.enc_new.answered(new_name)
                 links.append(z3.Implies(z3.And(ask_o, ask_n), ans_o == ans_n))
-        facts: list[Any] = []
         new_formulas = self._all_to_new([c.formula for c in self.enc_new.conjuncts])
         domains_old = {c.entry: c.formula for c in self.enc_old.conjuncts if c.kind == "domain"}
         domains_new = {c.entry: f for c, f in zip(self.enc_new.conjuncts, new_formulas, strict=True) if c.kind == "domain"}
+        # Facts by the statement they belong to (None: a section's or grid's own reach),
+        # so a query asserts only those that can bear on it.
+        self._by_entry: dict[tuple[str, int | None], list[Any]] = {}
         for c in self.enc_old.conjuncts:
             if not (c.kind == "domain" and c.entry in linked_old):
-                facts.append(c.formula)
+                self._by_entry.setdefault(("old", c.entry), []).append(c.formula)
         for c, formula in zip(self.enc_new.conjuncts, new_formulas, strict=True):
             if not (c.kind == "domain" and c.entry in linked_new):
-                facts.append(formula)
+                self._by_entry.setdefault(("new", c.entry), []).append(formula)
         # Linked numbers: the union of both ranges (singles are bounded by their label).
         for new_name, ne in new_vals.items():
             old_name = self.new_to_old.get(new_name, new_name)
@@ -183,8 +208,23 @@ class CrossVersion:
                 continue
             parts = [d for d in (domains_old.get(oe.index), domains_new.get(ne.index)) if d is not None]
             if parts:
-                facts.append(z3.Or(parts))
-        self.facts = facts + links
+                self._by_key.setdefault(old_name, []).append(z3.Or(parts))
+
+    def _facts_for(self, e_old: Entry, e_new: Entry) -> list[Any]:
+        cone_old, cone_new = cone(self.q_old, e_old), cone(self.q_new, e_new)
+        keys = {self.q_old.entries[i].name for i in cone_old} | {
+            self.new_to_old.get(self.q_new.entries[i].name, self.q_new.entries[i].name) for i in cone_new
+        }
+        # Facts without a statement define only the sections' and grids' own reach
+        # variables, which no item, stop or check constraint reads: left out.
+        out: list[Any] = []
+        for i in sorted(cone_old):
+            out.extend(self._by_entry.get(("old", i), []))
+        for i in sorted(cone_new):
+            out.extend(self._by_entry.get(("new", i), []))
+        for key in sorted(keys):
+            out.extend(self._by_key.get(key, []))
+        return out
 
     def new_var_value(self, name: str) -> Any:
         return self._apart(self.enc_new.value(name))
@@ -204,13 +244,7 @@ class CrossVersion:
         return [p.arg(1) for p in parts]
 
     # ------------------------------------------------------------ queries
-    def _get_solver(self, timeout_ms: int) -> z3.Solver:
-        if self._solver is None:
-            self._solver = z3.Solver()
-            self._solver.set("timeout", timeout_ms)
-            self._solver.add(*self.facts)
-        return self._solver
-
+    # ------------------------------------------------------------ queries
     def _opaque(self, q: Questionnaire, enc: Encoding, start: Entry) -> str | None:
         if start.index in enc.unencodable:
             return "its conditions cannot be read"
@@ -243,14 +277,12 @@ class CrossVersion:
             a_new = f_new(e_new.name if e_new.kind == "item" else e_new)
         except (EncodingError, KeyError) as err:
             return RoutingResult(same=False, error=str(err))
-        solver = self._get_solver(timeout_ms)
-        solver.push()
-        try:
-            solver.add(z3.Xor(a_old, a_new))
-            verdict = solver.check()
-            model = solver.model() if verdict == z3.sat else None
-        finally:
-            solver.pop()
+        solver = z3.Solver()
+        solver.set("timeout", timeout_ms)
+        solver.add(*self._facts_for(e_old, e_new))
+        solver.add(z3.Xor(a_old, a_new))
+        verdict = solver.check()
+        model = solver.model() if verdict == z3.sat else None
         if verdict == z3.unsat:
             return RoutingResult(same=True)
         if model is None:
