@@ -16,11 +16,11 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
-import z3  # noqa: E402
+import z3
 
-from logiccheck.checks.runner import run_checks  # noqa: E402
-from logiccheck.load import load_text  # noqa: E402
-from logiccheck.logic.routing import RoutingAnalysis  # noqa: E402
+from logiccheck.checks.runner import run_checks
+from logiccheck.load import load_text
+from logiccheck.logic.routing import RoutingAnalysis
 
 HEADER = """survey bench "Generated routing benchmark"
 

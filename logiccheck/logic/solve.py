@@ -92,8 +92,8 @@ class Queries:
                 by_id[fid] = key
         keys = list(pending)
         names = [f"q!{i}" for i in range(len(keys))]
-        lits = {key: z3.Bool(name) for key, name in zip(keys, names)}
-        by_lit = dict(zip(names, keys))
+        lits = {key: z3.Bool(name) for key, name in zip(keys, names, strict=True)}
+        by_lit = dict(zip(names, keys, strict=True))
         # A fresh solver per batch of questions: one that kept the learnt state of
         # earlier batches was several times slower.
         self.solver = z3.SimpleSolver()
