@@ -109,3 +109,21 @@ def test_simulate_is_deterministic_and_its_faults_are_found(tmp_path: Path) -> N
     other = tmp_path / "c.csv"
     run("simulate", SPEC, "-n", "300", "--seed", "12", "--out", str(other))
     assert other.read_bytes() != a.read_bytes()
+
+
+def test_findings_csv_is_the_same_by_either_writer(monkeypatch) -> None:
+    import io
+
+    from logiccheck.data import validate
+    from logiccheck.load import load_file
+    from logiccheck.report import data_csv
+
+    result = validate(load_file(SPEC).questionnaire, DEMO)
+    plain = io.StringIO()
+    data_csv.write_findings_csv(result, plain)
+    monkeypatch.setattr(data_csv, "ARROW_BLOCK", 0)
+    fast = io.StringIO()
+    data_csv.write_findings_csv(result, fast)
+    a = list(csv.reader(plain.getvalue().splitlines()))
+    b = list(csv.reader(fast.getvalue().splitlines()))
+    assert a == b and len(a) == 1 + len(result.findings)
