@@ -14,7 +14,16 @@ from logiccheck.data import causes
 from logiccheck.data.dispositions import answered_share, default_dispositions, tally
 from logiccheck.data.evaluate import ChunkState, Evaluator
 from logiccheck.data.findings import FindingBlock
-from logiccheck.data.frame import REASON_TEXT, Cells, Layout, NamePlan, cell_texts, plan_layout, type_cells
+from logiccheck.data.frame import (
+    REASON_TEXT,
+    Cells,
+    Layout,
+    NamePlan,
+    cell_texts,
+    parse_numbers,
+    plan_layout,
+    type_cells,
+)
 from logiccheck.data.mapping import DataMapping
 from logiccheck.data.readers import DEFAULT_CHUNK_ROWS, open_export, prefetch
 from logiccheck.data.result import TABLE_COLUMNS, ValidationResult
@@ -102,6 +111,7 @@ class Validator:
         blocks: list[FindingBlock] = self._file_blocks()
         ids: list[np.ndarray] = []
         stops: list[np.ndarray] = []
+        durations: list[np.ndarray] = []
         measures: list[np.ndarray] = []
         kept: dict[str, list[np.ndarray]] = {"due": [], "has": [], "valid": []}
         frames: list[pd.DataFrame] = []
@@ -150,6 +160,7 @@ class Validator:
             measures.append(np.column_stack([answered, n_due, gates_due, gates_answered]))
             ids.append(chunk_ids)
             stops.append(stop)
+            durations.append(self._duration(table))
             if self.keep:
                 empty = np.zeros((rows, 0), dtype=bool)
                 kept["due"].append(np.column_stack(cols_due) if cols_due else empty)
@@ -165,6 +176,7 @@ class Validator:
             timings["evaluate"] = t_eval
         all_ids = np.concatenate(ids) if ids else np.array([], dtype=object)
         stop_all = np.concatenate(stops) if stops else np.array([], dtype=object)
+        duration = np.concatenate(durations) if durations else np.array([], dtype=np.float64)
         m = np.concatenate(measures) if measures else np.zeros((0, 4), dtype=np.int64)
         share = answered_share(m[:, 0], m[:, 1])
         disposition = default_dispositions(share, stop_all)
@@ -190,6 +202,7 @@ class Validator:
                 "gates_answered": m[:, 3],
                 "stop": stop_all,
                 "disposition": disposition,
+                "duration": duration,
             }
         )
         result = ValidationResult(
@@ -214,6 +227,14 @@ class Validator:
         return result
 
     # ------------------------------------------------------------ pieces
+    def _duration(self, table: pa.Table) -> np.ndarray:
+        """Interview length in seconds per respondent; NaN where blank, not a number or negative."""
+        col = self.layout.duration_column
+        if col is None:
+            return np.full(table.num_rows, np.nan)
+        present, value, parsed = parse_numbers(table.column(col), self.mapping.blank_markers())
+        return np.where(present & parsed & (value >= 0), value, np.nan)
+
     def _ids(self, table: pa.Table, offset: int) -> np.ndarray:
         col = self.layout.id_column
         if col is None:
