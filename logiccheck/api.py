@@ -12,6 +12,7 @@
 from __future__ import annotations
 
 import importlib
+import tempfile
 from collections.abc import Iterable, Mapping
 from pathlib import Path
 from typing import Any
@@ -105,6 +106,42 @@ class Validation:
         return f"<Validation respondents={s['respondents']} findings={s['findings']} dispositions={s['dispositions']}>"
 
 
+class Cleaning:
+    """A cleaning run: `.cleaned` and `.audit` as DataFrames, `.summary`, `.findings`."""
+
+    def __init__(self, run: Any, *, kept: bool) -> None:
+        self.raw = run  # the clean stage's own result
+        self.outputs: list[Path] = list(run.outputs) if kept else []
+
+    @property
+    def cleaned(self) -> pd.DataFrame:
+        return self.raw.outcome.cleaned
+
+    @property
+    def audit(self) -> pd.DataFrame:
+        """One row per change, enough to undo it."""
+        return self.raw.outcome.audit
+
+    @property
+    def summary(self) -> dict[str, Any]:
+        return dict(self.raw.summary)
+
+    @property
+    def findings(self) -> pd.DataFrame:
+        from logiccheck.report.report_data import FINDING_COLUMNS, _frame
+
+        return _frame(self.raw.result.findings, FINDING_COLUMNS)
+
+    def _repr_html_(self) -> str:
+        from logiccheck.report.html import render_cleaning
+
+        return render_cleaning(self.summary)
+
+    def __repr__(self) -> str:
+        out = self.summary.get("output", {})
+        return f"<Cleaning respondents={out.get('respondents')} removed={out.get('removed')} cells_blanked={out.get('cells_blanked')}>"
+
+
 class Survey:
     """A loaded questionnaire spec: lint it, validate or clean exports, draw its routing."""
 
@@ -189,13 +226,48 @@ class Survey:
         return Validation(from_validation(self.questionnaire, raw, self._diagnostics(), settings=settings,
                                           export=export), raw)
 
-    def clean(self, data: str | Path | pd.DataFrame, *, policy: str | Path | Mapping[str, Any] | None = None) -> Any:
-        """Apply a cleaning policy to an export; returns the cleaning stage's result."""
+    def clean(
+        self,
+        data: str | Path | pd.DataFrame,
+        *,
+        policy: str | Path | Mapping[str, Any] | Any | None = None,
+        out: str | Path | None = None,
+        frame: str | Path | None = None,
+    ) -> Cleaning:
+        """Apply a cleaning policy to an export; the cleaned frame and audit as DataFrames.
+
+        `policy`: a policy TOML path, a `[clean]` table as a dict, a `CleanPolicy`, or None
+        for the configuration found above the spec. `out`: a folder for the cleaned file,
+        audit and summary (None: kept in memory only). The input is never modified.
+        """
         try:
-            clean_stage = importlib.import_module("logiccheck.clean")
+            run = importlib.import_module("logiccheck.clean.run")
+            policies = importlib.import_module("logiccheck.clean.policy")
         except ModuleNotFoundError as err:
             raise StageMissing("cleaning needs the clean stage (logiccheck.clean), which this build lacks") from err
-        return clean_stage.clean(self.questionnaire, data, policy=policy)
+        if self.path is not None:
+            configured, quality = policies.configured_policy(self.path)
+        else:
+            configured, quality = policies.CleanPolicy(), None
+        if policy is None:
+            chosen = configured
+        elif isinstance(policy, (str, Path)):
+            chosen, quality = policies.load_policy(policy)
+        elif isinstance(policy, Mapping):
+            chosen = policies.CleanPolicy.model_validate(dict(policy))
+        else:
+            chosen = policy
+        with tempfile.TemporaryDirectory(prefix="logiccheck-clean-") as tmp:
+            export = Path(tmp) / "export.csv"
+            if isinstance(data, pd.DataFrame):
+                data.to_csv(export, index=False)  # the clean stage reads files; a frame goes via a temp CSV
+            else:
+                export = Path(data)
+            target = Path(out) if out is not None else Path(tmp) / "out"
+            target.mkdir(parents=True, exist_ok=True)
+            done = run.clean_export(self.questionnaire, export, target, chosen, quality,
+                                    sample_frame=Path(frame) if frame is not None else None)
+        return Cleaning(done, kept=out is not None)
 
     def picture(self, fmt: str = "svg") -> bytes:
         """The routing picture (the first one, for specs drawn per section) as SVG or PNG bytes."""
@@ -236,4 +308,4 @@ def loads(text: str, file: str = "<spec>") -> Survey:
     return Survey(load_text(text, file), None)
 
 
-__all__ = ["Diagnostics", "StageMissing", "Survey", "Validation", "load", "loads"]
+__all__ = ["Cleaning", "Diagnostics", "StageMissing", "Survey", "Validation", "load", "loads"]

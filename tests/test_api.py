@@ -97,3 +97,25 @@ def test_clean_without_the_clean_stage_says_so() -> None:
     survey = logiccheck.load("specs/bikeshare.qlc")
     with pytest.raises(logiccheck.StageMissing, match=r"logiccheck\.clean"):
         survey.clean(pd.DataFrame({"id": [1]}))
+
+
+@pytest.mark.skipif(importlib.util.find_spec("logiccheck.clean") is None, reason="the clean stage is not in this build")
+def test_clean_gives_frames_and_keeps_the_input(tmp_path) -> None:
+    import hashlib
+    from pathlib import Path
+
+    export = Path("specs/bikeshare_export.csv")
+    before = hashlib.sha256(export.read_bytes()).hexdigest()
+    survey = logiccheck.load("specs/bikeshare.qlc")
+    cleaning = survey.clean(export, out=tmp_path / "cleaned")
+    assert isinstance(cleaning, logiccheck.Cleaning)
+    assert isinstance(cleaning.cleaned, pd.DataFrame) and isinstance(cleaning.audit, pd.DataFrame)
+    out = cleaning.summary["output"]
+    assert len(cleaning.cleaned) == out["respondents"] == 300 - out["removed"]
+    assert len(cleaning.audit) == out["cells_blanked"] > 0  # the demo export has off-path answers
+    assert cleaning.outputs and all(p.exists() for p in cleaning.outputs)
+    assert hashlib.sha256(export.read_bytes()).hexdigest() == before
+    in_memory = survey.clean(pd.read_csv(export, dtype=str, keep_default_na=False), policy={"blank_out_of_path": False})
+    assert in_memory.outputs == [] and len(in_memory.audit) < len(cleaning.audit)
+    html = cleaning._repr_html_()
+    assert "output.cells_blanked" in html and "<script" not in html.lower()

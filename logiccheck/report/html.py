@@ -171,3 +171,10 @@ def render_html(data: ReportData) -> str:
 def render_fragment(data: ReportData) -> str:
     """Summary and chart for a notebook cell (no page chrome, no routing picture)."""
     return _environment().get_template("fragment.html.j2").render(**report_context(data, pictures=False))
+
+
+def render_cleaning(summary: dict[str, Any]) -> str:
+    """A cleaning run's summary for a notebook cell: counts, removals, blanked cells, policy."""
+    rows = _settings_rows({k: summary.get(k) for k in ("input", "output", "removed", "blanked", "policy")
+                           if summary.get(k)})
+    return _environment().get_template("cleaning.html.j2").render(rows=rows, spec=summary.get("spec", ""))
