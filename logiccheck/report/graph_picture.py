@@ -27,6 +27,7 @@ GAP_X, GAP_Y = 0.3, 0.38
 MARGIN, PAD, HEADER = 0.3, 0.2, 0.42
 TITLE_H, LEGEND_H = 0.55, 0.85
 DPI = 100
+PNG_DPI = 150  # sharper text in raster pictures
 TEXT_PAD = 0.1  # inches kept free inside a box on each side
 
 # Our own palette: (face, edge) per box kind.
@@ -264,7 +265,7 @@ def figure_bytes(figure: Figure, fmt: str) -> bytes:
     buf = io.BytesIO()
     with matplotlib.rc_context({"svg.fonttype": "none", "svg.hashsalt": "logiccheck"}):
         metadata = {"Date": None} if fmt == "svg" else None
-        figure.savefig(buf, format=fmt, metadata=metadata)
+        figure.savefig(buf, format=fmt, metadata=metadata, dpi=PNG_DPI if fmt == "png" else DPI)
     return buf.getvalue()
 
 

@@ -77,11 +77,11 @@ def _finding_groups(data: ReportData) -> list[dict[str, Any]]:
         return []
     groups = []
     for (check, severity), part in f.groupby(["check", "severity"], sort=False):
-        ids = pd.unique(part["respondent"].map(_text))
+        ids = [i for i in pd.unique(part["respondent"].map(_text)) if i]  # file-level findings have none
         sample = part.head(MAX_ROWS)
         groups.append({
             "check": check, "severity": severity, "count": len(part), "respondents": len(ids),
-            "ids": list(ids[:MAX_IDS]), "more_ids": max(len(ids) - MAX_IDS, 0),
+            "ids": ids[:MAX_IDS], "more_ids": max(len(ids) - MAX_IDS, 0),
             "rows": [{k: _text(v) for k, v in r.items()} for r in
                      sample[["respondent", "item", "value", "message"]].to_dict("records")],
             "more_rows": max(len(part) - MAX_ROWS, 0),

@@ -243,3 +243,20 @@ def test_report_uses_and_lists_the_spec_configuration(tmp_path) -> None:
     diags = logiccheck.load(spec).lint()
     assert [d.severity.value for d in diags if d.check == "unknown-name"] == ["warning"]
     assert 'sev-warning">warning</span> <strong>unknown-name' in html
+
+
+def test_file_level_findings_list_no_empty_respondent(bikeshare) -> None:
+    import pandas as pd
+
+    q, _ = bikeshare
+    findings = pd.DataFrame([
+        {"check": "unknown-column", "severity": "info", "respondent": None, "row": None, "item": None,
+         "value": None, "message": "column `extra` is not in the spec"},
+        {"check": "unknown-column", "severity": "info", "respondent": None, "row": None, "item": None,
+         "value": None, "message": "column `more` is not in the spec"},
+    ])
+    data = ReportData(q, [], respondents=3, items=pd.DataFrame(columns=["item"]), findings=findings)
+    from logiccheck.report.html import _finding_groups
+
+    (group,) = _finding_groups(data)
+    assert group["count"] == 2 and group["ids"] == [] and group["respondents"] == 0
