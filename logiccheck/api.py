@@ -192,11 +192,14 @@ class Survey:
         mapping: str | Path | Any | None = None,
         frame: str | Path | None = None,
         settings: Mapping[str, Any] | None = None,
+        keep_cells: bool = False,
     ) -> Validation:
         """Run the data checks on an export (a file path or a DataFrame).
 
         `mapping` is a mapping TOML path or a `logiccheck.data.DataMapping`; `frame` a
-        sample-frame CSV. Raises `logiccheck.data.DataReadError` / `MappingError` for bad input.
+        sample-frame CSV; `keep_cells=True` keeps the respondent × item route arrays on
+        `.raw` (e.g. `.raw.item_states("trips")`). Raises `logiccheck.data.DataReadError` /
+        `MappingError` for bad input.
         """
         try:
             data_stage = importlib.import_module("logiccheck.data")
@@ -211,7 +214,7 @@ class Survey:
             mapping_obj = mapping
         if frame is not None:
             mapping_obj = mapping_obj.model_copy(update={"frame": str(frame)})
-        raw = data_stage.validate(self.questionnaire, data, mapping_obj, keep_cells=False)
+        raw = data_stage.validate(self.questionnaire, data, mapping_obj, keep_cells=keep_cells)
         from logiccheck.report.report_data import settings_used
 
         used = settings_used(self.config(), mapping_obj)
