@@ -23,7 +23,8 @@ class Severity(str, Enum):
 
 
 class Span(BaseModel):
-    """A place in a file: 1-based line and column, end inclusive of the last character."""
+    """A place in a file: 1-based line and column; the end column is exclusive (one past
+    the last character), as in SARIF."""
 
     model_config = ConfigDict(frozen=True)
 

@@ -35,6 +35,8 @@ class Router:
         self.asked: dict[str, bool] = {}
         self.values: dict[str, Any] = {}
         self.lets: dict[str, Any] = {}
+        self.fired: set[str] = set()  # stops that ended the interview
+        self.failed: set[str] = set()  # checks that applied and whose `require` is false
         self._route()
 
     def _route(self) -> None:
@@ -57,6 +59,9 @@ class Router:
                 self.values[e.name] = self.answers.get(e.name) if reached else None
             elif e.kind == "stop" and reached:
                 stopped = True
+                self.fired.add(e.name)
+            elif e.kind == "check" and reached and e.require is not None and self.eval(e.require) is False:
+                self.failed.add(e.name)
             elif e.kind == "skip" and reached and e.skip_target is not None:
                 skip_until = e.skip_target
 
@@ -134,10 +139,17 @@ class Router:
         raise NotImplementedError(type(x).__name__)
 
 
-def parse_witness(q: Questionnaire, witness: dict[str, str], rename: dict[str, str] | None = None) -> dict[str, Any]:
-    """A diff witness as answers for `q` (`rename` maps witness names to q's names)."""
+def parse_witness(
+    q: Questionnaire, witness: dict[str, str], rename: dict[str, str] | None = None, side: str | None = None
+) -> dict[str, Any]:
+    """A diff witness as answers for `q` (`rename` maps witness names to q's names; an
+    item whose type changed is given per version, `NAME (old)` / `NAME (new)`)."""
     out: dict[str, Any] = {}
     for name, text in witness.items():
+        if name.endswith((" (old)", " (new)")):
+            if side is None or not name.endswith(f" ({side})"):
+                continue
+            name = name.rsplit(" ", 1)[0]
         name = (rename or {}).get(name, name)
         e = q.symbols.get(name)
         if e is None or text == "(no answer)":

@@ -3,25 +3,20 @@
 from __future__ import annotations
 
 import json
-import subprocess
-import sys
 from pathlib import Path
 
 import pytest
 
 from logiccheck.config import Config, ConfigError, config_for, find_config, load_config, parse_config
+from tests.cli_run import Ran, run_cli
 from tests.conftest import CHECK_FIXTURES, ROOT
 
 BAD_NAME = (CHECK_FIXTURES / "unknown-name" / "bad.qlc").read_text()
 
 
-def _lint(*args: str, cwd: Path) -> subprocess.CompletedProcess[str]:
-    env_path = str(ROOT)
-    return subprocess.run(
-        [sys.executable, "-c", f"import sys; sys.path.insert(0, {env_path!r}); from logiccheck.cli.main import main; main()",
-         "lint", *args],
-        capture_output=True, text=True, cwd=cwd, check=False,
-    )
+def _lint(*args: str, cwd: Path | None = None) -> Ran:
+    del cwd  # configuration is found from each spec's folder, not the working folder
+    return run_cli("lint", *args)
 
 
 def test_found_by_walking_up(tmp_path: Path) -> None:
@@ -132,20 +127,13 @@ def test_validate_reads_the_data_table(tmp_path: Path) -> None:
     assert header[0] == "id"
     (tmp_path / "export.csv").write_text("\n".join([",".join(["resp_no", *header[1:]]), *rows[1:]]))
 
-    def validate() -> subprocess.CompletedProcess[str]:
-        return subprocess.run(
-            [sys.executable, "-m", "logiccheck", "validate", str(spec), "--data", str(tmp_path / "export.csv"), "--format", "json"],
-            capture_output=True, text=True, cwd=ROOT, check=False,
-        )
+    def validate() -> Ran:
+        return run_cli("validate", str(spec), "--data", str(tmp_path / "export.csv"), "--format", "json")
 
     without = validate()
     (tmp_path / "logiccheck.toml").write_text('[data]\nid = "resp_no"\n')
     with_config = validate()
-    reference = subprocess.run(
-        [sys.executable, "-m", "logiccheck", "validate", str(ROOT / "specs" / "bikeshare.qlc"), "--data",
-         str(ROOT / "specs" / "bikeshare_export.csv"), "--format", "json"],
-        capture_output=True, text=True, cwd=ROOT, check=False,
-    )
+    reference = run_cli("validate", str(ROOT / "specs" / "bikeshare.qlc"), "--data", str(ROOT / "specs" / "bikeshare_export.csv"), "--format", "json")
     assert without.stdout != reference.stdout or without.returncode == 2
     got, want = json.loads(with_config.stdout), json.loads(reference.stdout)
     assert got["respondents"] == want["respondents"]

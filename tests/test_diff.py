@@ -4,13 +4,12 @@ from __future__ import annotations
 
 import itertools
 import json
-import subprocess
-import sys
 
 import pytest
 
 from logiccheck.diff import diff_questionnaires
 from logiccheck.load import load_file, load_text
+from tests.cli_run import Ran, run_cli
 from tests.conftest import ROOT
 from tests.diff_oracle import Router, parse_witness
 
@@ -40,6 +39,16 @@ def _kinds(result) -> list[tuple[str, str | None]]:  # type: ignore[no-untyped-d
         ),
         ("renamed", [("item-renamed", "rode_ebike"), ("item-added", "parking"), ("item-removed", "purpose_other")]),
         ("wave1", []),
+        ("editrule", [("check-equivalent", "daily_needs_trips")]),
+        ("gridstem", [("flags-changed", "used"), ("wording-changed", "docks"), ("flags-changed", "docks")]),
+        (
+            "screenout",
+            [("stop-changed", "underage")]
+            + [("routing-changed", x) for x in (
+                "used", "freq", "trips", "purpose", "purpose_other", "ebike", "range_ok", "helmet",
+                "dock_find", "dock_app", "dock_safe", "praise", "why_not", "overall")]
+            + [("check-changed", "daily_needs_trips")],
+        ),
     ],
 )
 def test_reports_exactly_the_known_changes(new: str, expected: list) -> None:
@@ -130,8 +139,8 @@ def test_solver_verdict_agrees_with_exhaustive_routing(old_cond: str, new_cond: 
         assert asked == ((True, False) if change.asked_in == "old" else (False, True))
 
 
-def _cli(*args: str) -> subprocess.CompletedProcess[str]:
-    return subprocess.run([sys.executable, "-m", "logiccheck", "diff", *args], capture_output=True, text=True, cwd=ROOT, check=False)
+def _cli(*args: str) -> Ran:
+    return run_cli("diff", *args)
 
 
 def test_cli_formats_and_exit_status() -> None:
@@ -157,3 +166,49 @@ def test_cli_unreadable_or_broken_spec_exits_2(tmp_path) -> None:  # type: ignor
     broken.write_text('survey s "S"\nage number 0..120 "Age?"\n')
     proc = _cli(str(DATA / "wave1.qlc"), str(broken))
     assert proc.returncode == 2 and "broken.qlc:2:" in proc.stderr and proc.stderr.count("\n") == 1
+
+
+def test_every_screenout_witness_is_routed_as_claimed() -> None:
+    # A tightened screen-out: each witness, run through both versions by the independent
+    # router, is asked / screened out / fails the rule in exactly the version claimed.
+    old, new, result = _diff("screenout")
+    assert result.changes
+    for change in result.changes:
+        runs = {"old": Router(old, parse_witness(old, change.witness)), "new": Router(new, parse_witness(new, change.witness))}
+        if change.kind == "routing-changed":
+            got = {side: r.asked[change.item] for side, r in runs.items()}
+        elif change.kind == "stop-changed":
+            got = {side: change.item in r.fired for side, r in runs.items()}
+        else:
+            assert change.kind == "check-changed"
+            got = {side: change.item in r.failed for side, r in runs.items()}
+        other = "new" if change.asked_in == "old" else "old"
+        assert got == {change.asked_in: True, other: False}, change
+
+
+def test_new_option_type_change_and_unreadable_condition() -> None:
+    old, new, result = _diff("edge_new", old="edge_old")
+    assert _kinds(result) == [
+        ("option-added", "a"), ("type-changed", "m"), ("type-changed", "n"),
+        ("routing-changed", "c"), ("routing-not-compared", "d"), ("routing-changed", "e"),
+    ]
+    for change in (c for c in result.changes if c.kind == "routing-changed"):
+        a = Router(old, parse_witness(old, change.witness, side="old")).asked[change.item]
+        b = Router(new, parse_witness(new, change.witness, side="new")).asked[change.item]
+        assert (a, b) == ((True, False) if change.asked_in == "old" else (False, True))
+    # The skip's new reading catches the answer only the new version offers.
+    assert next(c for c in result.changes if c.item == "e").witness == {"a": "maybe"}
+
+
+def test_markdown_caps_rows_but_json_keeps_all() -> None:
+    from logiccheck.report.diff_markdown import MAX_ROWS, diff_markdown
+
+    head = 'survey s "S"\ncodes yesno\n  yes = 1 "Yes"\n  no = 2 "No"\nage: number 0..120 "Age?" strict\n'
+    body = "".join(f'q{i}: single yesno "Q{i}?"\n' for i in range(MAX_ROWS + 20))
+    old = load_text(head + body, "old.qlc").questionnaire
+    new = load_text(head + 'stop young "Too young" when age < 10\n' + body, "new.qlc").questionnaire
+    result = diff_questionnaires(old, new)
+    assert len(result.changes) == MAX_ROWS + 21  # the stop, and every item after it
+    md = diff_markdown(result)
+    assert md.count("| 🔴 break |") == MAX_ROWS and "… and 21 more changes" in md
+    assert len(result.to_json()["changes"]) == MAX_ROWS + 21

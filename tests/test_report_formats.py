@@ -4,8 +4,6 @@ from __future__ import annotations
 
 import json
 import re
-import subprocess
-import sys
 import xml.etree.ElementTree as ET
 from pathlib import Path
 
@@ -18,6 +16,7 @@ from logiccheck.load import load_file
 from logiccheck.report.github import annotation, escape_data, escape_property, github_text
 from logiccheck.report.junit import junit_text
 from logiccheck.report.sarif import sarif_log
+from tests.cli_run import run_cli
 from tests.conftest import CHECK_FIXTURES, ROOT
 
 SCHEMAS = Path(__file__).resolve().parent / "data" / "schemas"
@@ -91,10 +90,7 @@ def test_sarif_schema_rejects_a_broken_log() -> None:
 
 def test_sarif_from_the_command_line_is_valid() -> None:
     bad = CHECK_FIXTURES / "bad-suppression" / "bad.qlc"
-    proc = subprocess.run(
-        [sys.executable, "-m", "logiccheck", "lint", str(bad), "--format", "sarif"],
-        capture_output=True, text=True, cwd=ROOT, check=False,
-    )
+    proc = run_cli("lint", str(bad), "--format", "sarif")
     assert proc.returncode == 1, proc.stderr
     log = json.loads(proc.stdout)
     assert list(_sarif_validator().iter_errors(log)) == []
@@ -211,19 +207,19 @@ def test_github_property_with_comma_and_colon() -> None:
 # ------------------------------------------------------------------ validate findings
 def test_validate_findings_through_the_same_emitters() -> None:
     spec, data = ROOT / "specs" / "bikeshare.qlc", ROOT / "specs" / "bikeshare_export.csv"
-    base = [sys.executable, "-m", "logiccheck", "validate", str(spec), "--data", str(data)]
-    findings = json.loads(subprocess.run([*base, "--format", "json"], capture_output=True, text=True, cwd=ROOT, check=False).stdout)["findings"]
+    base = ["validate", str(spec), "--data", str(data)]
+    findings = json.loads(run_cli(*base, "--format", "json").stdout)["findings"]
     assert findings, "the demo export has planted faults"
-    sarif = json.loads(subprocess.run([*base, "--format", "sarif"], capture_output=True, text=True, cwd=ROOT, check=False).stdout)
+    sarif = json.loads(run_cli(*base, "--format", "sarif").stdout)
     assert list(_sarif_validator().iter_errors(sarif)) == []
     results = sarif["runs"][0]["results"]
     assert len(results) == len(findings)
     assert [r["ruleId"] for r in results] == [f["check"] for f in findings]
     first = next(r for r in results if r.get("relatedLocations"))
     assert first["relatedLocations"][0]["physicalLocation"]["artifactLocation"]["uri"].endswith("bikeshare.qlc")
-    junit = ET.fromstring(subprocess.run([*base, "--format", "junit"], capture_output=True, text=True, cwd=ROOT, check=False).stdout)
+    junit = ET.fromstring(run_cli(*base, "--format", "junit").stdout)
     assert _conforms(junit, _xsd_rules()) == []
     failing_checks = {f["check"] for f in findings if f["severity"] == "error"}
     assert junit.get("failures") == str(len(failing_checks))
-    lines = subprocess.run([*base, "--format", "github"], capture_output=True, text=True, cwd=ROOT, check=False).stdout.splitlines()
+    lines = run_cli(*base, "--format", "github").stdout.splitlines()
     assert len(lines) == len(findings) and all(line.startswith("::") for line in lines)

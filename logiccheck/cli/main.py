@@ -12,6 +12,7 @@ from logiccheck.cli.explain import explain_command
 from logiccheck.cli.graph import graph_command
 from logiccheck.cli.lint import lint_command
 from logiccheck.cli.rates import rates_command
+from logiccheck.cli.report import report_command
 from logiccheck.cli.simulate import simulate_command
 from logiccheck.cli.validate import validate_command
 
@@ -30,6 +31,7 @@ cli.add_command(validate_command)
 cli.add_command(check_command)
 cli.add_command(simulate_command)
 cli.add_command(diff_command)
+cli.add_command(report_command)
 cli.add_command(clean_command)
 cli.add_command(rates_command)
 

@@ -20,7 +20,7 @@ from logiccheck.report.data_csv import items_csv, write_csv_dir
 from logiccheck.report.data_json import validation_json
 from logiccheck.report.data_text import render_validation
 
-DATA_FORMATS = ["text", "json", "csv", "sarif", "junit", "github"]
+DATA_FORMATS = ["text", "json", "csv", "sarif", "junit", "github", "html"]
 PROGRESS_AFTER = 1.5  # seconds before a progress bar appears
 
 
@@ -159,7 +159,7 @@ def spec_note(loaded: Loaded) -> str | None:
 @click.argument("spec", type=click.Path(dir_okay=False))
 @data_options
 @click.option("--format", "fmt", type=click.Choice(DATA_FORMATS), default="text", show_default=True)
-@click.option("--out", "out", type=click.Path(file_okay=False), help="With --format csv: write items.csv and findings.csv here.")
+@click.option("--out", "out", type=click.Path(), help="With --format csv: write items.csv and findings.csv in this folder; with --format html: the report file.")
 @fail_on_option
 @color_option
 def validate_command(
@@ -182,5 +182,12 @@ def validate_command(
     result = run_validation(loaded, data, mapping, encoding, chunk_rows, color)
     if note:
         click.echo(f"logiccheck: note: {note}", err=True)
-    emit_validation(result, fmt, color, show, out, loaded)
+    if fmt == "html":
+        from logiccheck.cli.report import write_html
+
+        path = write_html(loaded, out, result, mapping)
+        if out:
+            click.echo(f"logiccheck: wrote {path}", err=True)
+    else:
+        emit_validation(result, fmt, color, show, out, loaded)
     sys.exit(validation_status(result, fail_on))

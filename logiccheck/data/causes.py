@@ -92,5 +92,8 @@ def off_route_message(q: Questionnaire, item: str, g: Guard, keys: np.ndarray) -
     if g.kind == "skip":
         return f"`{item}` answered but {guard_text(q, g)}; the skip passes over `{item}`"
     facts = [fact(q, how, name, float(keys[j])) for j, (how, name) in enumerate(g.reads)]
-    said = " and ".join(facts) if facts else "the condition is false"
-    return f"`{item}` answered but {said}; {guard_text(q, g)}"
+    said = " and ".join(facts) if facts else "the condition does not hold"
+    message = f"`{item}` answered but {said}; {guard_text(q, g)}"
+    if g.kind == "own" and g.entry is not None and g.entry.index in q.broken:
+        message += " (this condition has a spec problem; see `logiccheck lint`)"
+    return message

@@ -99,7 +99,11 @@ class Compiler:
 
         def run(env: Env) -> TV:
             out = inner(env)
-            return out if isinstance(out, TV) else env.unknown()
+            if not isinstance(out, TV):
+                return env.unknown()
+            if out.t.shape != (env.rows,):  # a condition on constants only
+                return TV(np.broadcast_to(out.t, (env.rows,)).copy(), np.broadcast_to(out.f, (env.rows,)).copy())
+            return out
 
         return run
 
@@ -115,12 +119,13 @@ class Compiler:
     def compile(self, expr: Any) -> Compiled:
         q = self.q
         if isinstance(expr, n.Num):
-            v = float(expr.value)
-            return lambda env: NumV(np.full(env.rows, v), np.full(env.rows, v))
+            # Constants are 0-d arrays: numpy broadcasts them against the columns.
+            const = NumV(np.array(float(expr.value)), np.array(float(expr.value)))
+            return lambda env: const
         if isinstance(expr, n.Code):
             v = float(expr.value)
-            w = math.nan if expr.label in self.nr_labels else v
-            return lambda env: NumV(np.full(env.rows, v), np.full(env.rows, w))
+            code = NumV(np.array(v), np.array(math.nan if expr.label in self.nr_labels else v))
+            return lambda env: code
         if isinstance(expr, n.Ref):
             name = expr.name
             entry = q.symbols.get(name)
@@ -357,6 +362,11 @@ class Evaluator:
         for e in self.q.entries:
             if e.kind == "let":
                 out = self.own[e.index](env)
+                shape = (rows,)
+                if isinstance(out, TV) and out.t.shape != shape:
+                    out = TV(np.broadcast_to(out.t, shape).copy(), np.broadcast_to(out.f, shape).copy())
+                elif isinstance(out, NumV) and out.num.shape != shape:
+                    out = NumV(np.broadcast_to(out.raw, shape).copy(), np.broadcast_to(out.num, shape).copy())
                 if isinstance(out, TV):
                     env.bools[e.name] = out
                 elif isinstance(out, NumV):

@@ -7,6 +7,7 @@ with a million problem cells costs arrays, not a million objects, until it is pr
 
 from __future__ import annotations
 
+from collections.abc import Iterator
 from dataclasses import dataclass
 
 import numpy as np
@@ -51,6 +52,19 @@ class FindingBlock:
     ids: np.ndarray | None = None  # respondent ids (object array of str), aligned with rows
     values: list[str] | None = None  # cell texts, aligned with rows
 
+    def rows_out(self) -> Iterator[tuple[str, str, str | None, int | None, str | None, str | None, str]]:
+        """(check, severity, respondent, row, item, value, message) without building records."""
+        sev = self.severity.value
+        if self.rows.size == 0:
+            yield (self.check, sev, None, None, self.item, None, self.message)
+            return
+        templated = "{value}" in self.message
+        ids = self.ids.tolist() if self.ids is not None else [None] * len(self.rows)
+        values = self.values if self.values is not None else [None] * len(self.rows)
+        for row, rid, value in zip(self.rows.tolist(), ids, values, strict=True):
+            message = self.message.replace("{value}", value or "") if templated else self.message
+            yield (self.check, sev, rid, row + 1, self.item, value, message)
+
     def head(self, k: int) -> list[Finding]:
         """The first `k` records only."""
         return self.records(limit=k)
@@ -64,8 +78,9 @@ class FindingBlock:
         for i, row in enumerate(rows.tolist()):
             value = self.values[i] if self.values is not None else None
             message = self.message.replace("{value}", value or "") if templated else self.message
+            # Fields are built here from checked parts, so skip pydantic's validation.
             out.append(
-                Finding(
+                Finding.model_construct(
                     check=self.check,
                     severity=self.severity,
                     respondent=str(self.ids[i]) if self.ids is not None else None,

@@ -174,7 +174,6 @@ def parse_numbers(arr: pa.Array, blank: set[str]) -> tuple[np.ndarray, np.ndarra
     # Careful path: parse each distinct text once.
     enc = pc.dictionary_encode(arr)
     texts = enc.dictionary.to_pylist()
-    idx = enc.indices.to_numpy(zero_copy_only=False)
     d_value = np.full(len(texts) + 1, np.nan)
     d_blank = np.zeros(len(texts) + 1, dtype=bool)
     d_parsed = np.ones(len(texts) + 1, dtype=bool)
@@ -193,14 +192,15 @@ def parse_numbers(arr: pa.Array, blank: set[str]) -> tuple[np.ndarray, np.ndarra
             d_parsed[i] = False
             continue
         d_value[i] = v
-    idx = np.where(np.asarray(enc.indices.is_valid()), np.nan_to_num(idx, nan=-1), -1).astype(np.int64)
-    idx = np.where(idx < 0, len(texts), idx)
+    idx = np.asarray(enc.indices.fill_null(len(texts)).to_numpy(zero_copy_only=False), dtype=np.int64)
     return ~d_blank[idx], d_value[idx], d_parsed[idx]
 
 
 def _column(table: pa.Table, name: str) -> pa.Array:
     col = table.column(name)
-    return col.combine_chunks() if isinstance(col, pa.ChunkedArray) else col
+    if isinstance(col, pa.ChunkedArray):
+        return col.chunk(0) if col.num_chunks == 1 else col.combine_chunks()
+    return col
 
 
 def type_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping) -> Cells:

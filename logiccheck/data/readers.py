@@ -20,7 +20,7 @@ import pyarrow.csv as pacsv
 DEFAULT_CHUNK_ROWS = 200_000
 # Files up to this size are read in one threaded pass and then sliced; larger ones are
 # streamed block by block, so an export larger than memory still validates.
-ONE_PASS_BYTES = 1_500_000_000
+ONE_PASS_BYTES = 256_000_000
 
 
 class DataReadError(Exception):
@@ -177,6 +177,40 @@ def _slices(table: pa.Table, chunk_rows: int) -> Iterator[pa.Table]:
         return
     for start in range(0, table.num_rows, chunk_rows):
         yield table.slice(start, chunk_rows)
+
+
+def prefetch(chunks: Iterator[pa.Table], depth: int = 1) -> Iterator[pa.Table]:
+    """Read the next chunk in a background thread while the caller works on this one
+    (pyarrow's reader releases the GIL, so reading and evaluating overlap)."""
+    import queue
+    import threading
+
+    box: queue.Queue = queue.Queue(maxsize=depth)
+    done = object()
+    stop = threading.Event()
+
+    def work() -> None:
+        try:
+            for table in chunks:
+                if stop.is_set():
+                    return
+                box.put(table)
+            box.put(done)
+        except BaseException as err:  # noqa: BLE001 - handed to the consuming thread
+            box.put(err)
+
+    thread = threading.Thread(target=work, daemon=True)
+    thread.start()
+    try:
+        while True:
+            item = box.get()
+            if item is done:
+                return
+            if isinstance(item, BaseException):
+                raise item
+            yield item
+    finally:
+        stop.set()
 
 
 # ---------------------------------------------------------------- other formats

@@ -31,7 +31,7 @@ class ValidationResult:
     stop: np.ndarray  # the stop that fired per respondent ("" if none)
     disposition: np.ndarray  # per respondent
     dispositions: dict[str, int]
-    measures: pd.DataFrame  # per respondent: answered, due, answered_share, gates_due, gates_answered, stop
+    measures: pd.DataFrame  # per respondent: id, answered, due, answered_share, gates_due, gates_answered, stop, disposition, duration
     due: np.ndarray | None = None
     has_value: np.ndarray | None = None
     valid: np.ndarray | None = None

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import time
 from collections.abc import Callable, Iterable
 from pathlib import Path
 
@@ -13,9 +14,18 @@ from logiccheck.data import causes
 from logiccheck.data.dispositions import answered_share, default_dispositions, tally
 from logiccheck.data.evaluate import ChunkState, Evaluator
 from logiccheck.data.findings import FindingBlock
-from logiccheck.data.frame import REASON_TEXT, Cells, Layout, NamePlan, cell_texts, plan_layout, type_cells
+from logiccheck.data.frame import (
+    REASON_TEXT,
+    Cells,
+    Layout,
+    NamePlan,
+    cell_texts,
+    parse_numbers,
+    plan_layout,
+    type_cells,
+)
 from logiccheck.data.mapping import DataMapping
-from logiccheck.data.readers import DEFAULT_CHUNK_ROWS, open_export
+from logiccheck.data.readers import DEFAULT_CHUNK_ROWS, open_export, prefetch
 from logiccheck.data.result import TABLE_COLUMNS, ValidationResult
 from logiccheck.diagnostics import Severity
 from logiccheck.model.questionnaire import Questionnaire
@@ -39,22 +49,24 @@ def validate(
     keep_cells: bool = True,
     stream: bool | None = None,
     progress: Progress | None = None,
+    timings: dict[str, float] | None = None,
 ) -> ValidationResult:
     """Run the routing on an export. `source` is a file path, a DataFrame or an Arrow table.
 
     Results do not depend on `chunk_rows`: respondents are independent of each other.
-    Raises `DataReadError` for an export that cannot be read.
+    Raises `DataReadError` for an export that cannot be read. `timings`, when given, is
+    filled with seconds spent reading and evaluating.
     """
     mapping = mapping or DataMapping()
     if isinstance(source, (str, Path)):
         export = open_export(source, encoding=encoding, chunk_rows=chunk_rows, stream=stream)
-        header, chunks, name = export.columns, export.chunks, str(export.path)
+        header, chunks, name = export.columns, prefetch(export.chunks), str(export.path)
     else:
         table = source if isinstance(source, pa.Table) else _table_from_frame(source)
         header = list(table.column_names)
         chunks = (table.slice(s, chunk_rows) for s in range(0, max(table.num_rows, 1), chunk_rows))
         name = None
-    return Validator(q, mapping, header, keep_cells=keep_cells).run(chunks, name, progress)
+    return Validator(q, mapping, header, keep_cells=keep_cells).run(chunks, name, progress, timings)
 
 
 def validate_frame(q: Questionnaire, frame: pd.DataFrame, mapping: DataMapping | None = None) -> ValidationResult:
@@ -86,58 +98,85 @@ class Validator:
         self.stop_names = [e.name for e in q.entries if e.kind == "stop"]
         self.stop_index = {e.index: e.name for e in q.entries if e.kind == "stop"}
 
-    def run(self, chunks: Iterable[pa.Table], source: str | None, progress: Progress | None) -> ValidationResult:
+    def run(
+        self,
+        chunks: Iterable[pa.Table],
+        source: str | None,
+        progress: Progress | None,
+        timings: dict[str, float] | None = None,
+    ) -> ValidationResult:
         _q, layout = self.q, self.layout
         k = len(self.items)
         counts = np.zeros((k, 5), dtype=np.int64)
         blocks: list[FindingBlock] = self._file_blocks()
         ids: list[np.ndarray] = []
         stops: list[np.ndarray] = []
+        durations: list[np.ndarray] = []
         measures: list[np.ndarray] = []
         kept: dict[str, list[np.ndarray]] = {"due": [], "has": [], "valid": []}
         frames: list[pd.DataFrame] = []
         offset = 0
-        for table in chunks:
+        t_read = t_eval = 0.0
+        it = iter(chunks)
+        while True:
+            t0 = time.perf_counter()
+            table = next(it, None)
+            t1 = time.perf_counter()
+            t_read += t1 - t0
+            if table is None:
+                break
             rows = table.num_rows
             cells = {name: type_cells(plan, table, self.mapping) for name, plan in layout.plans.items()}
             state = self.evaluator.run(cells, rows)
             chunk_ids = self._ids(table, offset)
-            due = np.zeros((rows, k), dtype=bool)
-            has = np.zeros((rows, k), dtype=bool)
-            val = np.zeros((rows, k), dtype=bool)
+            answered = np.zeros(rows, dtype=np.int32)
+            n_due = np.zeros(rows, dtype=np.int32)
+            gates_due = np.zeros(rows, dtype=np.int32)
+            gates_answered = np.zeros(rows, dtype=np.int32)
+            cols_due, cols_has, cols_valid = [], [], []
             for j, item in enumerate(self.items):
                 c = cells[item]
                 d = state.env.due[item]
-                due[:, j], has[:, j], val[:, j] = d, c.present, c.valid
-                counts[j] += (
-                    int(d.sum()),
-                    int(c.present.sum()),
-                    int((c.present & ~d).sum()),
-                    int((d & ~c.present).sum()),
-                    int((c.present & ~c.valid).sum()),
-                )
+                on = d & c.present
+                n_on = int(np.count_nonzero(on))
+                n_d = int(np.count_nonzero(d))
+                n_p = int(np.count_nonzero(c.present))
+                n_valid = int(np.count_nonzero(c.valid))
+                counts[j] += (n_d, n_p, n_p - n_on, n_d - n_on, n_p - n_valid)
+                answered += on
+                n_due += d
+                if self.gates[j]:
+                    gates_due += d
+                    gates_answered += d & c.valid
+                if self.keep:
+                    cols_due.append(d)
+                    cols_has.append(c.present)
+                    cols_valid.append(c.valid)
                 blocks += self._item_blocks(item, c, d, state, table, offset, chunk_ids)
             blocks += self._check_blocks(state, offset, chunk_ids)
             stop = np.array(["", *self.stop_names], dtype=object)[
                 np.searchsorted([-1, *self.stop_index], state.stop_at)
             ] if self.stop_names else np.full(rows, "", dtype=object)
-            answered = (due & has).sum(axis=1)
-            n_due = due.sum(axis=1)
-            gates_due = due[:, self.gates].sum(axis=1)
-            gates_answered = (due & val)[:, self.gates].sum(axis=1)
             measures.append(np.column_stack([answered, n_due, gates_due, gates_answered]))
             ids.append(chunk_ids)
             stops.append(stop)
+            durations.append(self._duration(table))
             if self.keep:
-                kept["due"].append(due)
-                kept["has"].append(has)
-                kept["valid"].append(val)
+                empty = np.zeros((rows, 0), dtype=bool)
+                kept["due"].append(np.column_stack(cols_due) if cols_due else empty)
+                kept["has"].append(np.column_stack(cols_has) if cols_has else empty)
+                kept["valid"].append(np.column_stack(cols_valid) if cols_valid else empty)
                 frames.append(self._typed(cells, chunk_ids, table))
             offset += rows
+            t_eval += time.perf_counter() - t1
             if progress is not None:
                 progress(offset, 0)
+        if timings is not None:
+            timings["read"] = t_read
+            timings["evaluate"] = t_eval
         all_ids = np.concatenate(ids) if ids else np.array([], dtype=object)
         stop_all = np.concatenate(stops) if stops else np.array([], dtype=object)
+        duration = np.concatenate(durations) if durations else np.array([], dtype=np.float64)
         m = np.concatenate(measures) if measures else np.zeros((0, 4), dtype=np.int64)
         share = answered_share(m[:, 0], m[:, 1])
         disposition = default_dispositions(share, stop_all)
@@ -163,6 +202,7 @@ class Validator:
                 "gates_answered": m[:, 3],
                 "stop": stop_all,
                 "disposition": disposition,
+                "duration": duration,
             }
         )
         result = ValidationResult(
@@ -187,6 +227,14 @@ class Validator:
         return result
 
     # ------------------------------------------------------------ pieces
+    def _duration(self, table: pa.Table) -> np.ndarray:
+        """Interview length in seconds per respondent; NaN where blank, not a number or negative."""
+        col = self.layout.duration_column
+        if col is None:
+            return np.full(table.num_rows, np.nan)
+        present, value, parsed = parse_numbers(table.column(col), self.mapping.blank_markers())
+        return np.where(present & parsed & (value >= 0), value, np.nan)
+
     def _ids(self, table: pa.Table, offset: int) -> np.ndarray:
         col = self.layout.id_column
         if col is None:

@@ -131,6 +131,7 @@ def _route_text(q: Questionnaire, e: Entry, rename: dict[str, str]) -> Any:
         "conds": [_strip(c) for c in e.conditions()],
         "stops": [[_strip(c) for c in s.conditions()] for s in stops],
         "skips": [[_strip(c) for c in s.conditions()] for s in skips],
+        "require": _strip(e.require),
     }
 
     def rename_refs(value: Any) -> Any:
@@ -185,6 +186,9 @@ def diff_questionnaires(old: Questionnaire, new: Questionnaire, *, routing: bool
                 _change("wording-changed", name, f"`{name}` text was \"{oe.stmt.text}\", is now \"{ne.stmt.text}\"",
                         old=oe.stmt.text_span, new=ne.stmt.text_span)
             )
+        flags = _flag_changes(oe, ne)
+        if flags:
+            changes.append(_change("flags-changed", name, f"`{name}`: " + ", ".join(flags), **{"old": oe.span, "new": ne.span}))
         if cross is None:
             continue
         result.compared += 1
@@ -206,7 +210,90 @@ def diff_questionnaires(old: Questionnaire, new: Questionnaire, *, routing: bool
                         f"`{name}`: a respondent is asked it in the {side} version and not in the {other}",
                         witness=verdict.witness, asked_in=side, **where)
             )
+    changes.extend(_grid_changes(old, new))
+    changes.extend(_statement_changes(old, new, cross, rename))
     order = {name: i for i, name in enumerate(list(new_items) + [k for k in old_items if k not in new_items])}
-    changes.sort(key=lambda c: (order.get(c.item or "", -1),))
+    # Screen-outs first (they explain the routing changes after them), edit rules last.
+    grid_first = {g: min((i for i, e in enumerate(new_items.values()) if e.grid is not None and e.grid.name == g), default=-1)
+                  for g in new.grids}
+
+    def rank(c: Change) -> float:
+        if c.item in grid_first and c.item not in order:
+            return grid_first[c.item] - 0.5
+        if c.kind.startswith("stop-") or (c.kind == "routing-not-compared" and c.item in stops):
+            return -0.5
+        if c.kind.startswith("check-") or (c.kind == "routing-not-compared" and c.item in checks):
+            return len(order)
+        return order.get(c.item or "", -1)
+
+    stops = {e.name for q in (old, new) for e in q.entries if e.kind == "stop"}
+    checks = {e.name for q in (old, new) for e in q.entries if e.kind == "check"}
+    changes.sort(key=rank)
     result.changes = changes
     return result
+
+
+def _statement_changes(
+    old: Questionnaire, new: Questionnaire, cross: CrossVersion | None, rename: dict[str, str]
+) -> list[Change]:
+    """Stops (screen-outs) and checks (edit rules), matched by name."""
+    out: list[Change] = []
+    for kind, word in (("stop", "stop"), ("check", "check")):
+        before = {e.name: e for e in old.entries if e.kind == kind}
+        after = {e.name: e for e in new.entries if e.kind == kind}
+        for name, e in after.items():
+            if name not in before:
+                out.append(_change(f"{kind}-added", name, f"{word} `{name}` is new", new=e.span))
+        for name, e in before.items():
+            if name not in after:
+                out.append(_change(f"{kind}-removed", name, f"{word} `{name}` was removed", old=e.span))
+        for name, e_new in after.items():
+            e_old = before.get(name)
+            if e_old is None or cross is None:
+                continue
+            verdict = cross.compare_statement(e_old, e_new)
+            where = {"old": e_old.span, "new": e_new.span}
+            acts = "fires" if kind == "stop" else "fails"
+            if verdict.error is not None:
+                out.append(_change("routing-not-compared", name, f"{word} `{name}`: {verdict.error}", **where))
+            elif not verdict.same:
+                side, other = ("old", "new") if verdict.asked_old else ("new", "old")
+                out.append(
+                    _change(f"{kind}-changed", name,
+                            f"{word} `{name}` {acts} for a respondent in the {side} version and not in the {other}",
+                            witness=verdict.witness, asked_in=side, **where)
+                )
+            elif kind == "check" and _route_text(old, e_old, {}) != _route_text(new, e_new, rename):
+                out.append(
+                    _change("check-equivalent", name, f"check `{name}` was rewritten; the solver proves it fails "
+                            "for the same respondents", **where)
+                )
+    return out
+
+
+FLAG_NAMES = ("required", "strict", "gate", "key")
+
+
+def _flag_changes(oe: Entry, ne: Entry) -> list[str]:
+    out = []
+    for flag in FLAG_NAMES:
+        before, after = getattr(oe.stmt.flags, flag), getattr(ne.stmt.flags, flag)
+        if before != after:
+            out.append(f"now `{flag}`" if after else f"no longer `{flag}`")
+    return out
+
+
+def _grid_changes(old: Questionnaire, new: Questionnaire) -> list[Change]:
+    """A grid's stem is part of every row's wording; `shuffled` changes the order effects."""
+    out = []
+    for name, g in new.grids.items():
+        was = old.grids.get(name)
+        if was is None:
+            continue
+        if was.text != g.text:
+            out.append(_change("wording-changed", name, f"grid `{name}` stem was \"{was.text}\", is now \"{g.text}\"",
+                               old=was.text_span, new=g.text_span))
+        if was.shuffled != g.shuffled:
+            now = "now `shuffled`" if g.shuffled else "no longer `shuffled`"
+            out.append(_change("flags-changed", name, f"grid `{name}`: {now}", old=was.name_span, new=g.name_span))
+    return out

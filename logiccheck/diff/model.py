@@ -22,10 +22,18 @@ KINDS: dict[str, tuple[Impact, str]] = {
     "option-removed": ("break", "an answer option is gone"),
     "option-reworded": ("caution", "an answer option's text changed"),
     "wording-changed": ("caution", "the question text changed: compare waves with care"),
+    "flags-changed": ("caution", "a flag changed (required, strict, gate, key, shuffled)"),
     "nonresponse-changed": ("caution", "the non-response codes changed"),
     "routing-changed": ("break", "who is asked changed"),
     "routing-equivalent": ("info", "the condition was rewritten; the solver proves it asks the same people"),
     "routing-not-compared": ("caution", "who is asked could not be compared"),
+    "stop-added": ("break", "a new screen-out: some respondents now end here"),
+    "stop-removed": ("break", "a screen-out is gone"),
+    "stop-changed": ("break", "a screen-out ends the interview for other respondents"),
+    "check-added": ("info", "a new edit rule"),
+    "check-removed": ("caution", "an edit rule is gone"),
+    "check-changed": ("caution", "an edit rule fails for other respondents"),
+    "check-equivalent": ("info", "an edit rule was rewritten; the solver proves it fails for the same respondents"),
 }
 
 

@@ -67,22 +67,51 @@ def _refs(expr: Any) -> set[str]:
     return names
 
 
-def support(q: Questionnaire, name: str) -> set[str]:
-    """Every name whose value or routing can decide whether `name` is asked."""
+def support(q: Questionnaire, start: str | Entry) -> set[str]:
+    """Every name whose value or routing can decide whether `start` (a name, or a
+    statement such as a stop or check) is asked, fires or fails."""
     seen: set[str] = set()
-    todo = [name]
+    todo: list[str | Entry] = [start]
     while todo:
         current = todo.pop()
-        entry = q.symbols.get(current)
-        if entry is None or current in seen:
+        entry = q.symbols.get(current) if isinstance(current, str) else current
+        if entry is None:
             continue
-        seen.add(current)
+        if isinstance(current, str):
+            if current in seen:
+                continue
+            seen.add(current)
         exprs = list(entry.conditions()) if entry.kind != "let" else [entry.own]
+        if entry.require is not None:
+            exprs.append(entry.require)
         stops, skips = q.guards(entry)
         for guard in (*stops, *skips):
             exprs.extend(guard.conditions())
         for expr in exprs:
             todo.extend(_refs(expr) - seen)
+    return seen
+
+
+def cone(q: Questionnaire, start: Entry) -> set[int]:
+    """The statements whose constraints can bear on `start`: those its conditions read
+    (and what theirs read), and the stops and skips before each of them."""
+    seen: set[int] = set()
+    todo = [start]
+    while todo:
+        entry = todo.pop()
+        if entry.index in seen:
+            continue
+        seen.add(entry.index)
+        exprs = list(entry.conditions()) if entry.kind != "let" else [entry.own]
+        if entry.require is not None:
+            exprs.append(entry.require)
+        stops, skips = q.guards(entry)
+        todo.extend(g for g in (*stops, *skips) if g.index not in seen)
+        for expr in exprs:
+            for name in _refs(expr):
+                ref = q.symbols.get(name)
+                if ref is not None and ref.index not in seen:
+                    todo.append(ref)
     return seen
 
 
@@ -99,7 +128,6 @@ class CrossVersion:
         self._renamed_vars: dict[str, Any] = {}
         self._label_vars: dict[str, tuple[Any, list[str]]] = {}
         self._build()
-        self._solver: z3.Solver | None = None
 
     # ------------------------------------------------------------ the shared respondent
     def _apart(self, var: Any) -> Any:
@@ -123,12 +151,13 @@ class CrossVersion:
                     self._apart(self.enc_new.option(name, value))
         linked_old: set[int] = set()
         linked_new: set[int] = set()
-        links: list[Any] = []
+        self._by_key: dict[str, list[Any]] = {}
         for new_name, ne in new_vals.items():
             old_name = self.new_to_old.get(new_name, new_name)
             oe = old_vals.get(old_name)
             if oe is None or oe.stmt.type.kind != ne.stmt.type.kind or oe.kind != ne.kind:
                 continue  # nothing to link: a new item, or a type change
+            links = self._by_key.setdefault(old_name, [])
             kind = ne.stmt.type.kind
             if kind == "text":
                 pass
@@ -159,16 +188,18 @@ class CrossVersion:
                 ask_o, ask_n = self.enc_old.asked(old_name), self.enc_new.asked(new_name)
                 ans_o, ans_n = self.enc_old.answered(old_name), self.enc_new.answered(new_name)
                 links.append(z3.Implies(z3.And(ask_o, ask_n), ans_o == ans_n))
-        facts: list[Any] = []
         new_formulas = self._all_to_new([c.formula for c in self.enc_new.conjuncts])
         domains_old = {c.entry: c.formula for c in self.enc_old.conjuncts if c.kind == "domain"}
         domains_new = {c.entry: f for c, f in zip(self.enc_new.conjuncts, new_formulas, strict=True) if c.kind == "domain"}
+        # Facts by the statement they belong to (None: a section's or grid's own reach),
+        # so a query asserts only those that can bear on it.
+        self._by_entry: dict[tuple[str, int | None], list[Any]] = {}
         for c in self.enc_old.conjuncts:
             if not (c.kind == "domain" and c.entry in linked_old):
-                facts.append(c.formula)
+                self._by_entry.setdefault(("old", c.entry), []).append(c.formula)
         for c, formula in zip(self.enc_new.conjuncts, new_formulas, strict=True):
             if not (c.kind == "domain" and c.entry in linked_new):
-                facts.append(formula)
+                self._by_entry.setdefault(("new", c.entry), []).append(formula)
         # Linked numbers: the union of both ranges (singles are bounded by their label).
         for new_name, ne in new_vals.items():
             old_name = self.new_to_old.get(new_name, new_name)
@@ -177,8 +208,23 @@ class CrossVersion:
                 continue
             parts = [d for d in (domains_old.get(oe.index), domains_new.get(ne.index)) if d is not None]
             if parts:
-                facts.append(z3.Or(parts))
-        self.facts = facts + links
+                self._by_key.setdefault(old_name, []).append(z3.Or(parts))
+
+    def _facts_for(self, e_old: Entry, e_new: Entry) -> list[Any]:
+        cone_old, cone_new = cone(self.q_old, e_old), cone(self.q_new, e_new)
+        keys = {self.q_old.entries[i].name for i in cone_old} | {
+            self.new_to_old.get(self.q_new.entries[i].name, self.q_new.entries[i].name) for i in cone_new
+        }
+        # Facts without a statement define only the sections' and grids' own reach
+        # variables, which no item, stop or check constraint reads: left out.
+        out: list[Any] = []
+        for i in sorted(cone_old):
+            out.extend(self._by_entry.get(("old", i), []))
+        for i in sorted(cone_new):
+            out.extend(self._by_entry.get(("new", i), []))
+        for key in sorted(keys):
+            out.extend(self._by_key.get(key, []))
+        return out
 
     def new_var_value(self, name: str) -> Any:
         return self._apart(self.enc_new.value(name))
@@ -198,48 +244,52 @@ class CrossVersion:
         return [p.arg(1) for p in parts]
 
     # ------------------------------------------------------------ queries
-    def _get_solver(self, timeout_ms: int) -> z3.Solver:
-        if self._solver is None:
-            self._solver = z3.Solver()
-            self._solver.set("timeout", timeout_ms)
-            self._solver.add(*self.facts)
-        return self._solver
-
-    def _opaque(self, q: Questionnaire, enc: Encoding, name: str) -> str | None:
-        for dep in support(q, name):
+    # ------------------------------------------------------------ queries
+    def _opaque(self, q: Questionnaire, enc: Encoding, start: Entry) -> str | None:
+        if start.index in enc.unencodable:
+            return "its conditions cannot be read"
+        for dep in support(q, start):
             entry = q.symbols.get(dep)
             if entry is not None and entry.index in enc.unencodable:
                 return f"the conditions of `{dep}` cannot be read"
-        guards = q.guards(q.symbols[name])
+        guards = q.guards(start)
         if any(g.index in enc.unencodable for g in (*guards[0], *guards[1])):
             return "an earlier stop or skip cannot be read"
         return None
 
     def compare(self, old_name: str, new_name: str, timeout_ms: int = 20000) -> RoutingResult:
-        why = self._opaque(self.q_old, self.enc_old, old_name) or self._opaque(self.q_new, self.enc_new, new_name)
+        """Is the item asked of the same respondents in both versions?"""
+        e_old, e_new = self.q_old.symbols[old_name], self.q_new.symbols[new_name]
+        return self._query(e_old, e_new, self.enc_old.asked, self.enc_new.asked, timeout_ms)
+
+    def compare_statement(self, e_old: Entry, e_new: Entry, timeout_ms: int = 20000) -> RoutingResult:
+        """A stop: does it fire for the same respondents? A check: does it fail for them?"""
+        if e_old.kind == "stop":
+            return self._query(e_old, e_new, self.enc_old.fires, self.enc_new.fires, timeout_ms)
+        return self._query(e_old, e_new, self.enc_old.fails, self.enc_new.fails, timeout_ms)
+
+    def _query(self, e_old: Entry, e_new: Entry, f_old: Any, f_new: Any, timeout_ms: int) -> RoutingResult:
+        why = self._opaque(self.q_old, self.enc_old, e_old) or self._opaque(self.q_new, self.enc_new, e_new)
         if why is not None:
             return RoutingResult(same=False, error=why)
         try:
-            a_old = self.enc_old.asked(old_name)
-            a_new = self.enc_new.asked(new_name)
+            a_old = f_old(e_old.name if e_old.kind == "item" else e_old)
+            a_new = f_new(e_new.name if e_new.kind == "item" else e_new)
         except (EncodingError, KeyError) as err:
             return RoutingResult(same=False, error=str(err))
-        solver = self._get_solver(timeout_ms)
-        solver.push()
-        try:
-            solver.add(z3.Xor(a_old, a_new))
-            verdict = solver.check()
-            model = solver.model() if verdict == z3.sat else None
-        finally:
-            solver.pop()
+        solver = z3.Solver()
+        solver.set("timeout", timeout_ms)
+        solver.add(*self._facts_for(e_old, e_new))
+        solver.add(z3.Xor(a_old, a_new))
+        verdict = solver.check()
+        model = solver.model() if verdict == z3.sat else None
         if verdict == z3.unsat:
             return RoutingResult(same=True)
         if model is None:
             return RoutingResult(same=False, error="the solver gave up (timeout)")
-        names = support(self.q_old, old_name) | {
-            self.new_to_old.get(x, x) for x in support(self.q_new, new_name)
-        }
-        names.discard(old_name)
+        names = support(self.q_old, e_old) | {self.new_to_old.get(x, x) for x in support(self.q_new, e_new)}
+        if e_old.kind == "item":
+            names.discard(e_old.name)
         return RoutingResult(
             same=False,
             witness=self._witness(model, names),
@@ -250,51 +300,59 @@ class CrossVersion:
     # ------------------------------------------------------------ witnesses
     def _witness(self, model: z3.ModelRef, old_names: set[str]) -> dict[str, str]:
         """The answers the respondent would give, named as the new version names them;
-        items asked in neither version are left out (their answers cannot matter)."""
+        items asked in neither version are left out (their answers cannot matter). An
+        item whose type changed has two answers, `NAME (old)` and `NAME (new)`."""
+        old_vals, new_vals = _valued(self.q_old), _valued(self.q_new)
+        order = {name: i for i, name in enumerate([e.name for e in self.q_new.entries])}
+        out: dict[str, str] = {}
+        for key in sorted(old_names, key=lambda k: order.get(self.old_to_new.get(k, k), -1)):
+            new_name = self.old_to_new.get(key, key)
+            oe, ne = old_vals.get(key), new_vals.get(new_name)
+            sides = []
+            if oe is not None:
+                sides.append(("old", oe, key))
+            if ne is not None:
+                sides.append(("new", ne, new_name))
+            if len(sides) == 2 and oe.stmt.type.kind != ne.stmt.type.kind:
+                for which, entry, name in sides:
+                    shown = self._answer(model, which, entry, name, key)
+                    if shown is not None:
+                        out[f"{new_name} ({which})"] = shown
+                continue
+            # Read the answer from a version that asks the item (or a sample variable).
+            for which, entry, name in sides:
+                shown = self._answer(model, which, entry, name, key)
+                if shown is not None:
+                    out[new_name] = shown
+                    break
+        return out
+
+    def _answer(self, model: z3.ModelRef, which: str, entry: Entry, name: str, key: str) -> str | None:
+        """The answer in one version, or None where that version does not ask it."""
         def ev(x: Any) -> Any:
             return model.eval(x, model_completion=True)
 
-        old_vals, new_vals = _valued(self.q_old), _valued(self.q_new)
-        order = [e.name for e in self.q_new.entries] + [e.name for e in self.q_old.entries]
-        out: dict[str, str] = {}
-        for key in sorted(old_names, key=lambda k: order.index(self.old_to_new.get(k, k)) if self.old_to_new.get(k, k) in order else 0):
-            new_name = self.old_to_new.get(key, key)
-            oe, ne = old_vals.get(key), new_vals.get(new_name)
-            # Read the answer from a version that asks the item (or a sample variable).
-            sides = []
-            if oe is not None:
-                asked = z3.BoolVal(True) if oe.kind == "sample" else self.enc_old.asked(key)
-                sides.append(("old", oe, asked, self.enc_old.answered(key)))
-            if ne is not None:
-                asked = z3.BoolVal(True) if ne.kind == "sample" else self.enc_new.asked(new_name)
-                sides.append(("new", ne, asked, self.enc_new.answered(new_name)))
-            side = next((s for s in sides if z3.is_true(ev(s[2]))), None)
-            if side is None:
-                continue
-            which, entry, _asked, answered = side
-            if not z3.is_true(ev(answered)):
-                out[new_name] = NO_ANSWER
-                continue
-            q = self.q_old if which == "old" else self.q_new
-            kind = entry.stmt.type.kind
-            if kind == "text":
-                out[new_name] = ANSWERED
-            elif kind == "multi":
-                table = _labels(q, entry)
-                chosen = [
-                    lb for lb, v in table.items()
-                    if z3.is_true(ev(self.enc_old.option(key, v) if which == "old" else self.new_var_option(new_name, v)))
-                ]
-                out[new_name] = ", ".join(chosen)
-            else:
-                var = self.enc_old.value(key) if which == "old" else self.new_var_value(new_name)
-                raw = ev(var)
-                if kind == "single":
-                    number = raw.as_long()
-                    labels = {v: lb for lb, v in _labels(q, entry).items()}
-                    out[new_name] = labels.get(number, str(number))
-                elif z3.is_int_value(raw):
-                    out[new_name] = str(raw.as_long())
-                else:
-                    out[new_name] = raw.as_decimal(6).rstrip("?")
-        return out
+        enc = self.enc_old if which == "old" else self.enc_new
+        if entry.kind != "sample" and not z3.is_true(ev(enc.asked(name))):
+            return None
+        if not z3.is_true(ev(enc.answered(name))):
+            return NO_ANSWER
+        q = self.q_old if which == "old" else self.q_new
+        kind = entry.stmt.type.kind
+        if kind == "text":
+            return ANSWERED
+        if kind == "multi":
+            def chosen(v: int) -> Any:
+                return self.enc_old.option(name, v) if which == "old" else self.new_var_option(name, v)
+
+            return ", ".join(lb for lb, v in _labels(q, entry).items() if z3.is_true(ev(chosen(v))))
+        raw = ev(self.enc_old.value(name) if which == "old" else self.new_var_value(name))
+        if kind == "single" and key in self._label_vars:
+            choice, labels = self._label_vars[key]
+            return labels[ev(choice).as_long()]
+        if kind == "single":
+            labels_by_value = {v: lb for lb, v in _labels(q, entry).items()}
+            return labels_by_value.get(raw.as_long(), str(raw.as_long()))
+        if z3.is_int_value(raw):
+            return str(raw.as_long())
+        return raw.as_decimal(6).rstrip("?")

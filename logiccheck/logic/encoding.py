@@ -58,6 +58,7 @@ class Conjunct:
     text: str
     entry: int | None = None
     cond: str | None = None  # the condition's source text, where there is one
+    subject: str | None = None  # "entry:INDEX" or "block:NAME": what it constrains
 
 
 @dataclass
@@ -80,30 +81,54 @@ class Block:
     context: list[tuple[Any, Any]] = field(default_factory=list)
 
 
+def _mk(fn: Any, parts: list[z3.BoolRef]) -> z3.BoolRef:
+    # The C API directly: z3.And/z3.Or coerce every argument, which dominates build time.
+    ctx = parts[0].ctx
+    arr = (z3.Ast * len(parts))()
+    for i, p in enumerate(parts):
+        arr[i] = p.as_ast()
+    return z3.BoolRef(fn(ctx.ref(), len(parts), arr), ctx)
+
+
 def _and(parts: Iterable[z3.BoolRef]) -> z3.BoolRef:
-    parts = [p for p in parts if not z3.is_true(p)]
-    if any(z3.is_false(p) for p in parts):
-        return FALSE
-    if not parts:
+    """Conjunction, folding the constants TRUE and FALSE (compared by identity)."""
+    out = []
+    for p in parts:
+        if p is FALSE:
+            return FALSE
+        if p is not TRUE:
+            out.append(p)
+    if not out:
         return TRUE
-    return parts[0] if len(parts) == 1 else z3.And(*parts)
+    return out[0] if len(out) == 1 else _mk(z3.Z3_mk_and, out)
 
 
 def _or(parts: Iterable[z3.BoolRef]) -> z3.BoolRef:
-    parts = [p for p in parts if not z3.is_false(p)]
-    if any(z3.is_true(p) for p in parts):
-        return TRUE
-    if not parts:
+    out = []
+    for p in parts:
+        if p is TRUE:
+            return TRUE
+        if p is not FALSE:
+            out.append(p)
+    if not out:
         return FALSE
-    return parts[0] if len(parts) == 1 else z3.Or(*parts)
+    return out[0] if len(out) == 1 else _mk(z3.Z3_mk_or, out)
 
 
 def _not(p: z3.BoolRef) -> z3.BoolRef:
-    if z3.is_true(p):
+    if p is TRUE:
         return FALSE
-    if z3.is_false(p):
+    if p is FALSE:
         return TRUE
-    return z3.Not(p)
+    return z3.BoolRef(z3.Z3_mk_not(p.ctx.ref(), p.as_ast()), p.ctx)
+
+
+def _implies(a: z3.BoolRef, b: z3.BoolRef) -> z3.BoolRef:
+    if a is FALSE or b is TRUE:
+        return TRUE
+    if a is TRUE:
+        return b
+    return z3.BoolRef(z3.Z3_mk_implies(a.ctx.ref(), a.as_ast(), b.as_ast()), a.ctx)
 
 
 class Encoding:
@@ -202,11 +227,13 @@ class Encoding:
 
     # ------------------------------------------------------------ building
     def _add(self, formula: z3.BoolRef, kind: str, span: Span, text: str, entry: int | None = None,
-             cond: str | None = None) -> None:
-        if z3.is_true(formula):
+             cond: str | None = None, subject: str | None = None) -> None:
+        if formula is TRUE:
             return
         label = f"c{self.tag}:{len(self.conjuncts)}"
-        self.conjuncts.append(Conjunct(label, formula, kind, span, text, entry, cond))
+        if subject is None and entry is not None:
+            subject = f"entry:{entry}"
+        self.conjuncts.append(Conjunct(label, formula, kind, span, text, entry, cond, subject))
 
     def source(self, span: Span) -> str:
         """The spec text of a span (one line, or the first line of several)."""
@@ -253,8 +280,9 @@ class Encoding:
             blocks_at.setdefault(block.start, []).append(block)
         for entry in q.entries:
             for block in blocks_at.get(entry.index, []):
+                word = _block_word(block.node)
                 self._define_reach(self._block_reach[block.name], block.start, block.context,
-                                   f"section `{block.name}`", None, block.node.name_span)
+                                   f"{word} `{block.name}`", None, block.node.name_span, f"block:{block.name}")
             if entry.index not in self._reach:
                 continue
             self._define_entry(entry)
@@ -272,9 +300,9 @@ class Encoding:
         ans = z3.Bool(self._var_name("ans", name))
         self._answered[name] = ans
         span = item.name_span
-        self._add(z3.Implies(ans, ask), "answered", span, f"`{name}` has an answer only if it is asked", entry.index)
+        self._add(_implies(ans, ask), "answered", span, f"`{name}` has an answer only if it is asked", entry.index)
         if item.flags.required:
-            self._add(z3.Implies(ask, ans), "required", span, f"`{name}` is `required`: answered whenever asked",
+            self._add(_implies(ask, ans), "required", span, f"`{name}` is `required`: answered whenever asked",
                       entry.index)
         nr = self.nr_values if q.allows_nonresponse(item) else []
         if kind == "single":
@@ -312,7 +340,7 @@ class Encoding:
             opts = {o.value: z3.Bool(f"opt:{name}:{o.value}") for o in (codes.options if codes else [])}
             self._options[name] = opts
             # Options are read only through `answered`, so they stay free when unanswered.
-            self._add(z3.Implies(ans, _or(list(opts.values()))), "multi", span,
+            self._add(_implies(ans, _or(list(opts.values()))), "multi", span,
                       f"`{name}` has an answer when at least one option is chosen", entry.index)
 
     def _declare_sample(self, entry: Entry) -> None:
@@ -362,31 +390,34 @@ class Encoding:
         ]
 
     def _define_reach(self, reach: z3.BoolRef, index: int, context: list[tuple[Any, Any]], what: str,
-                      entry: int | None, span: Span) -> None:
+                      entry: int | None, span: Span, subject: str) -> None:
         parts = []
         for owner, expr in context:
             if expr is None:
                 continue
             at = self.q.section_start.get(owner.name, index)
-            t = self._safe_truth(expr, at, entry)
-            text = self.source(expr.span)
-            self._add(z3.Implies(reach, t), "context", expr.span,
-                      f"{what} is only reached when `{text}` ({_block_word(owner)} `{owner.name}`, line {expr.span.line})",
-                      entry, text)
-            parts.append(t)
+            for conj in conjuncts_of(expr):
+                t = self._safe_truth(conj, at, entry)
+                text = self.source(conj.span)
+                self._add(_implies(reach, t), "context", conj.span,
+                          f"{what} is only reached when `{text}` ({_block_word(owner)} `{owner.name}`, line {conj.span.line})",
+                          entry, text, subject)
+                parts.append(t)
         alive, last = self._alive_before(index)
         if last is not None:
-            self._add(z3.Implies(reach, alive), "alive", last.stmt.name_span,
-                      f"{what} is only reached when no earlier stop fired", entry)
+            self._add(_implies(reach, alive), "alive", last.stmt.name_span,
+                      f"{what} is only reached when no earlier stop fired", entry, None, subject)
             parts.append(alive)
         for skip in self._spanning_skips(index):
             fires = self._fires_term(skip)
             cond = self.source(skip.own.span) if skip.own is not None else None
             when = f" when `{cond}`" if cond else ""
-            self._add(z3.Implies(reach, _not(fires)), "skip", skip.stmt.span,
-                      f"`skip to {skip.stmt.target}` (line {skip.stmt.span.line}) passes over {what}{when}", entry, cond)
+            self._add(_implies(reach, _not(fires)), "skip", skip.stmt.span,
+                      f"`skip to {skip.stmt.target}` (line {skip.stmt.span.line}) passes over {what}{when}", entry, cond,
+                      subject)
             parts.append(_not(fires))
-        self._add(z3.Implies(_and(parts), reach), "reach-if", span, f"{what} is reached whenever that holds", entry)
+        self._add(_implies(_and(parts), reach), "reach-if", span, f"{what} is reached whenever that holds", entry,
+                  None, subject)
 
     def _safe_truth(self, expr: Any, at: int, entry: int | None) -> z3.BoolRef:
         try:
@@ -404,18 +435,22 @@ class Encoding:
     def _define_entry(self, entry: Entry) -> None:
         stmt = entry.stmt
         label = _entry_word(entry)
-        self._define_reach(self.reached(entry), entry.index, entry.context, label, entry.index, entry.span)
+        self._define_reach(self.reached(entry), entry.index, entry.context, label, entry.index, entry.span,
+                           f"entry:{entry.index}")
         if entry.kind == "item":
             ask = self._asked[entry.name]
             own = TRUE
             if entry.own is not None:
                 own = self._safe_truth(entry.own, entry.index, entry.index)
-                text = self.source(entry.own.span)
-                self._add(z3.Implies(ask, own), "own", entry.own.span,
-                          f"`{entry.name}` is only asked when `{text}` (line {entry.own.span.line})", entry.index, text)
-            self._add(z3.Implies(ask, self.reached(entry)), "asked-reach", entry.span,
+                for conj in conjuncts_of(entry.own):
+                    t = self._safe_truth(conj, entry.index, entry.index)
+                    text = self.source(conj.span)
+                    self._add(_implies(ask, t), "own", conj.span,
+                              f"`{entry.name}` is only asked when `{text}` (line {conj.span.line})", entry.index, text,
+                              f"entry:{entry.index}")
+            self._add(_implies(ask, self.reached(entry)), "asked-reach", entry.span,
                       f"`{entry.name}` is asked only where it is reached", entry.index)
-            self._add(z3.Implies(_and([self.reached(entry), own]), ask), "asked-if", entry.span,
+            self._add(_implies(_and([self.reached(entry), own]), ask), "asked-if", entry.span,
                       f"`{entry.name}` is asked whenever it is reached and its condition holds", entry.index)
         elif entry.kind == "stop":
             rank = self._stop_rank[entry.index]
@@ -553,7 +588,7 @@ class Encoding:
             v = z3.IntVal(int(expr.value)) if expr.is_int else z3.RealVal(str(expr.value))
             return Value(TRUE, v, FALSE)
         if isinstance(expr, n.Code):
-            return Value(TRUE, z3.IntVal(expr.value), z3.BoolVal(expr.label in self.nr_labels))
+            return Value(TRUE, z3.IntVal(expr.value), TRUE if expr.label in self.nr_labels else FALSE)
         if isinstance(expr, n.Ref):
             entry = self._visible(expr.name, at)
             if entry is None:
@@ -658,6 +693,16 @@ class Encoding:
                 if o.value == number:
                     return o.label
         return f"{number:g}" if isinstance(number, float) else str(number)
+
+
+def conjuncts_of(expr: Any) -> list[Any]:
+    """The top-level `and` parts of a condition (Kleene: true exactly when all are)."""
+    if isinstance(expr, n.And):
+        out = []
+        for o in expr.operands:
+            out.extend(conjuncts_of(o))
+        return out
+    return [expr]
 
 
 def _block_word(owner: Any) -> str:

@@ -8,8 +8,12 @@ import os
 import tempfile
 from pathlib import Path
 
+import pyarrow as pa
+import pyarrow.csv as pacsv
+
 from logiccheck.data.result import TABLE_COLUMNS, ValidationResult
 
+ARROW_BLOCK = 1000  # blocks at least this large are written by pyarrow
 FINDING_COLUMNS = ["check", "severity", "respondent", "row", "item", "value", "message"]
 
 
@@ -20,11 +24,28 @@ def items_csv(result: ValidationResult) -> str:
 
 
 def write_findings_csv(result: ValidationResult, fh: io.TextIOBase) -> None:
+    """Every finding, one row each; large blocks go through pyarrow's CSV writer."""
     writer = csv.writer(fh, lineterminator="\n")
     writer.writerow(FINDING_COLUMNS)
     for block in result.blocks:
-        for f in block.records():
-            writer.writerow(["" if v is None else v for v in (f.check, f.severity.value, f.respondent, f.row, f.item, f.value, f.message)])
+        if block.rows.size < ARROW_BLOCK or "{value}" in block.message:
+            writer.writerows(["" if v is None else v for v in rec] for rec in block.rows_out())
+            continue
+        k = block.rows.size
+        table = pa.table(
+            {
+                "check": pa.repeat(pa.scalar(block.check), k),
+                "severity": pa.repeat(pa.scalar(block.severity.value), k),
+                "respondent": pa.array(block.ids, pa.string()) if block.ids is not None else pa.nulls(k, pa.string()),
+                "row": pa.array(block.rows + 1),
+                "item": pa.repeat(pa.scalar(block.item or ""), k),
+                "value": pa.array(block.values, pa.string()) if block.values is not None else pa.nulls(k, pa.string()),
+                "message": pa.repeat(pa.scalar(block.message), k),
+            }
+        )
+        buf = io.BytesIO()
+        pacsv.write_csv(table, buf, write_options=pacsv.WriteOptions(include_header=False, quoting_style="needed"))
+        fh.write(buf.getvalue().decode("utf-8"))
 
 
 def _atomic_write(path: Path, write) -> None:  # type: ignore[no-untyped-def]

@@ -5,11 +5,14 @@ from __future__ import annotations
 from rich.console import Console
 from rich.markup import escape
 from rich.table import Table
+from rich.text import Text
 
 from logiccheck.data.result import ValidationResult
+from logiccheck.report.bars import bar_text
 
 STYLE = {"error": "bold red", "warning": "yellow", "info": "cyan"}
 SEVERITY_ORDER = {"error": 0, "warning": 1, "info": 2}
+BAR_WIDTH = 6  # cells of the route bar (fits an 80-column terminal with the flag); 12 on wide ones
 
 
 def render_validation(console: Console, result: ValidationResult, *, show: int = 5, table_rows: int = 200) -> None:
@@ -21,6 +24,7 @@ def render_validation(console: Console, result: ValidationResult, *, show: int =
         header_style="bold",
         show_edge=False,
         pad_edge=False,
+        padding=(0, 1, 0, 0),  # right padding only: the route bar fits 80 columns
     )
     table.add_column("item", justify="left", no_wrap=True, overflow="fold")
     for col, justify in (
@@ -29,9 +33,10 @@ def render_validation(console: Console, result: ValidationResult, *, show: int =
         ("off path", "right"),
         ("missing", "right"),
         ("invalid", "right"),
-        ("", "left"),
+        ("route", "left"),  # bar: █ answered on path, ░ missing, ▓ off path; then the flag
     ):
         table.add_column(col, justify=justify, no_wrap=True)  # type: ignore[arg-type]
+    bar_width = BAR_WIDTH if console.width < 100 else 2 * BAR_WIDTH
     for r in result.table.head(table_rows).itertuples(index=False):
         over = bool(r.over_expected)
         flag = "[bold red]> expected[/bold red]" if over else ""
@@ -43,7 +48,8 @@ def render_validation(console: Console, result: ValidationResult, *, show: int =
             f"[red]{r.out_of_path}[/red]" if r.out_of_path else "0",
             f"[cyan]{r.missing_on_path}[/cyan]" if r.missing_on_path else "0",
             f"[red]{r.invalid}[/red]" if r.invalid else "0",
-            flag,
+            bar_text(int(r.expected), int(r.answered), int(r.out_of_path), int(r.missing_on_path), width=bar_width)
+            + Text.from_markup(" " + flag if flag else ""),
         )
     console.print(table)
     if len(result.table) > table_rows:

@@ -4,6 +4,8 @@ from __future__ import annotations
 
 from logiccheck.diff.model import KINDS, SpecDiff
 
+# A pull-request comment has a size limit; the JSON output always has every change.
+MAX_ROWS = 100
 MARK = {"break": "🔴 break", "caution": "🟡 caution", "info": "⚪ info"}
 
 
@@ -26,12 +28,14 @@ def diff_markdown(diff: SpecDiff) -> str:
         lines.append("No changes to items, answer lists, wording or routing.")
         return "\n".join(lines) + "\n"
     lines += ["| impact | change | item | what | line (new) |", "| --- | --- | --- | --- | --- |"]
-    for c in diff.changes:
+    for c in diff.changes[:MAX_ROWS]:
         line = str(c.new.line) if c.new else (f"old {c.old.line}" if c.old else "")
         lines.append(
             f"| {MARK[c.impact]} | `{c.kind}` | {('`' + c.item + '`') if c.item else ''} | {_cell(c.message)} | {line} |"
         )
-    witnesses = [c for c in diff.changes if c.witness is not None]
+    if len(diff.changes) > MAX_ROWS:
+        lines.append(f"\n… and {len(diff.changes) - MAX_ROWS} more changes (`logiccheck diff --format json` lists all).")
+    witnesses = [c for c in diff.changes[:MAX_ROWS] if c.witness is not None]
     if witnesses:
         lines += ["", "<details><summary>Witness respondents</summary>", ""]
         for c in witnesses:

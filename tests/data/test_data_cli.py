@@ -109,3 +109,49 @@ def test_simulate_is_deterministic_and_its_faults_are_found(tmp_path: Path) -> N
     other = tmp_path / "c.csv"
     run("simulate", SPEC, "-n", "300", "--seed", "12", "--out", str(other))
     assert other.read_bytes() != a.read_bytes()
+
+
+def test_findings_csv_is_the_same_by_either_writer(monkeypatch) -> None:
+    import io
+
+    from logiccheck.data import validate
+    from logiccheck.load import load_file
+    from logiccheck.report import data_csv
+
+    result = validate(load_file(SPEC).questionnaire, DEMO)
+    plain = io.StringIO()
+    data_csv.write_findings_csv(result, plain)
+    monkeypatch.setattr(data_csv, "ARROW_BLOCK", 0)
+    fast = io.StringIO()
+    data_csv.write_findings_csv(result, fast)
+    a = list(csv.reader(plain.getvalue().splitlines()))
+    b = list(csv.reader(fast.getvalue().splitlines()))
+    assert a == b and len(a) == 1 + len(result.findings)
+
+
+def test_check_json_and_a_spec_with_errors_still_validates(tmp_path: Path) -> None:
+    spec = tmp_path / "broken.qlc"
+    spec.write_text(
+        'survey b "Broken"\n\ncodes yesno\n  yes = 1 "Yes"\n  no  = 2 "No"\n\n'
+        'a: single yesno "A?"\nb: single yesno "B?" when a = maybe\nc: number 0..5 "C?" when a = yes\n',
+        encoding="utf-8",
+    )
+    data = tmp_path / "e.csv"
+    data.write_text("id,a,b,c\n1,1,1,3\n2,2,,4\n", encoding="utf-8")
+    res = run("check", str(spec), "--data", str(data), "--format", "json")
+    assert res.exit_code == 1
+    doc = json.loads(res.stdout)
+    assert [d["check"] for d in doc["lint"]["diagnostics"]] == ["unknown-code"]
+    assert doc["validate"]["respondents"] == 2
+    off = {(f["respondent"], f["item"]) for f in doc["validate"]["findings"] if f["check"] == "out-of-path"}
+    assert off == {("1", "b"), ("2", "c")}
+    assert "note: the spec has 1 problem" in res.stderr
+
+
+def test_header_only_export(tmp_path: Path) -> None:
+    data = tmp_path / "e.csv"
+    data.write_text("id,district,age,used\n", encoding="utf-8")
+    res = run("validate", SPEC, "--data", str(data), "--format", "json")
+    doc = json.loads(res.stdout)
+    assert doc["respondents"] == 0 and all(i["expected"] == 0 for i in doc["items"])
+    assert any(f["check"] == "missing-column" for f in doc["findings"])

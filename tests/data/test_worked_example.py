@@ -66,3 +66,42 @@ def test_hand_computed_counts() -> None:
     messages = {f.respondent: f.message for f in result.findings if f.check == "out-of-path"}
     assert messages["7"] == "`pet_kind` answered but `pet` = no; asked only when `pet = yes`, line 8"
     assert messages["10"] == "`pet_kind` answered but `pet` was left blank; asked only when `pet = yes`, line 8"
+
+
+def test_measures_and_dispositions_by_hand() -> None:
+    # AAPOR Standard Definitions example thresholds (from memory): complete > 80 % of due
+    # items answered, partial 50–80 %, break-off < 50 %.
+    spec = """survey disp "Dispositions"
+
+codes yesno
+  yes = 1 "Yes"
+  no  = 2 "No"
+
+age: number 0..120 "Age?"
+stop minor "Adults only." when age < 18
+a: single yesno "A?" gate
+b: single yesno "B?"
+c: single yesno "C?"
+d: single yesno "D?"
+"""
+    frame = pd.DataFrame(
+        {
+            "id": ["p1", "p2", "p3", "p4", "p5"],
+            "age": ["30", "40", "50", "12", "60"],
+            "a": ["1", "1", "1", None, None],
+            "b": ["1", "1", None, None, None],
+            "c": ["1", "1", None, None, None],
+            "d": ["1", None, None, None, None],
+            "duration": ["300", "x", "", "40", "-5"],
+        }
+    )
+    result = validate(load_text(spec, "disp.qlc").questionnaire, frame)
+    m = result.measures.set_index("id")
+    # Due: age + a..d = 5 for adults; p4 is stopped after age (1 due).
+    assert m["due"].tolist() == [5, 5, 5, 1, 5]
+    assert m["answered"].tolist() == [5, 4, 2, 1, 1]
+    assert m["gates_answered"].tolist() == [1, 1, 1, 0, 0]
+    # p1 5/5 complete; p2 4/5 = 80 % partial (not above 80 %); p3 2/5 = 40 % break-off.
+    assert m["disposition"].tolist() == ["complete", "partial", "break-off", "minor", "break-off"]
+    assert result.dispositions == {"complete": 1, "partial": 1, "break-off": 2, "minor": 1}
+    assert m.loc["p1", "duration"] == 300 and m["duration"].isna().tolist() == [False, True, True, False, True]

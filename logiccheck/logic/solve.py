@@ -1,0 +1,221 @@
+"""Solver queries on an `Encoding`: batched satisfiability and explained unsat cores."""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Hashable, Iterable
+from dataclasses import dataclass, field
+
+import z3
+
+from logiccheck.logic.encoding import FALSE, Conjunct, Encoding, _implies, _or
+
+# Conjunct kinds that say something in the spec's terms; the others are plumbing.
+TELLING = ("domain", "required", "context", "own", "stop", "skip", "target")
+
+
+@dataclass
+class Stats:
+    calls: int = 0
+
+
+@dataclass
+class Cover:
+    """Which keys have a satisfying respondent (`models[key]`) and which have none."""
+
+    models: dict[Hashable, z3.ModelRef] = field(default_factory=dict)
+    unsat: set[Hashable] = field(default_factory=set)
+
+
+class Queries:
+    """One incremental solver over every constraint of an encoding.
+
+    `cover` decides many questions "is there a respondent with F?" at once: it asks for
+    the disjunction of the open ones, marks every question the model satisfies, and
+    repeats; when the disjunction is unsatisfiable, the rest have no respondent."""
+
+    def __init__(self, enc: Encoding, stats: Stats | None = None) -> None:
+        self.enc = enc
+        self.stats = stats or Stats()
+        self.solver = z3.Solver()
+        self.solver.add(*enc.facts())
+        self._lits: dict[str, Conjunct] = {c.label: c for c in enc.conjuncts}
+        self.phase: int | None = 5  # random phases: models spread over many branches
+        self.by_subject: dict[str | None, list[Conjunct]] = {}
+        for c in enc.conjuncts:
+            self.by_subject.setdefault(c.subject, []).append(c)
+
+    def conjuncts_of(self, subjects: Iterable[str] | None) -> list[Conjunct]:
+        """The constraints of some subjects (all of them for None). Checking a question
+        against the constraints of the subjects it depends on is exact: every other
+        constraint defines a variable from others or can be met by leaving an item
+        unanswered."""
+        if subjects is None:
+            return list(self.enc.conjuncts)
+        out: list[Conjunct] = []
+        for subject in subjects:
+            out.extend(self.by_subject.get(subject, ()))
+        return out
+
+    def check(self, *formulas: z3.BoolRef) -> z3.ModelRef | None:
+        self.stats.calls += 1
+        if self.solver.check(*formulas) == z3.sat:
+            return self.solver.model()
+        return None
+
+    def cover(self, questions: dict[Hashable, z3.BoolRef], subjects: Iterable[str] | None = None,
+              first: Callable[[Hashable], bool] | None = None) -> Cover:
+        """Decide every question with few calls, in two phases.
+
+        1. Ask for as many open questions at once as possible (a conjunction of
+           assumptions); when that has no respondent, the unsat core names the
+           conflicting questions: set one aside and ask again. A question whose core is
+           itself alone has no respondent. Each model answers every question it
+           satisfies.
+        2. What is still open is asked as one disjunction until that has no respondent
+           (all remaining are impossible) -- few calls when most are impossible."""
+        out = Cover()
+        pending: dict[Hashable, z3.BoolRef] = {}
+        for key, f in questions.items():
+            if f is FALSE:
+                out.unsat.add(key)
+            else:
+                pending[key] = f
+        # The same formula asked twice (z3 shares equal terms) is decided once.
+        alias: dict[Hashable, Hashable] = {}
+        by_id: dict[int, Hashable] = {}
+        for key in list(pending):
+            fid = pending[key].get_id()
+            if fid in by_id:
+                alias[key] = by_id[fid]
+                del pending[key]
+            else:
+                by_id[fid] = key
+        keys = list(pending)
+        names = [f"q!{i}" for i in range(len(keys))]
+        lits = {key: z3.Bool(name) for key, name in zip(keys, names, strict=True)}
+        by_lit = dict(zip(names, keys, strict=True))
+        # A fresh solver per batch of questions: one that kept the learnt state of
+        # earlier batches was several times slower.
+        self.solver = z3.SimpleSolver()
+        if self.phase is not None:
+            self.solver.set("phase_selection", self.phase)
+        _assert(self.solver, [c.formula for c in self.conjuncts_of(subjects)])
+        self.solver.push()
+        try:
+            _assert(self.solver, [_implies(lits[key], pending[key]) for key in keys])
+            reader = _Reader(pending)
+
+            def mark(model: z3.ModelRef) -> None:
+                for key in reader.true_in(model, pending):
+                    out.models[key] = model
+                    del pending[key]
+
+            # Phase 1 on the questions marked `first` (e.g. reachability): most of them
+            # hold together, so one conjunction usually answers them all.
+            batch = [k for k in keys if first is not None and first(k)]
+            budget = 6
+            while batch and budget > 0:
+                budget -= 1
+                self.stats.calls += 1
+                if self.solver.check(*[lits[k] for k in batch]) == z3.sat:
+                    mark(self.solver.model())
+                    break
+                core = [by_lit[str(c)] for c in self.solver.unsat_core() if str(c) in by_lit]
+                if len(core) == 1:
+                    out.unsat.add(core[0])
+                    pending.pop(core[0], None)
+                drop = set(core if len(core) <= 1 else core[len(core) // 2 :])
+                batch = [k for k in batch if k not in drop and k in pending]
+            while pending:
+                self.stats.calls += 1
+                if self.solver.check(_or([lits[k] for k in pending])) != z3.sat:
+                    out.unsat.update(pending)
+                    break
+                mark(self.solver.model())
+        finally:
+            self.solver.pop()
+        for key, other in alias.items():
+            if other in out.models:
+                out.models[key] = out.models[other]
+            else:
+                out.unsat.add(key)
+        return out
+
+    # ------------------------------------------------------------ explanations
+    def core(self, targets: Iterable[tuple[z3.BoolRef, Conjunct]], subjects: Iterable[str] | None = None,
+             limit: int = 40) -> list[Conjunct] | None:
+        """A minimised set of named constraints that, with the targets, has no
+        respondent (None if there is one). Targets are (formula, how to say it)."""
+        s = z3.Solver()
+        conjuncts = self.conjuncts_of(subjects)
+        for c in conjuncts:
+            s.add(z3.Implies(z3.Bool(c.label), c.formula))
+        s.push()
+        try:
+            own: dict[str, Conjunct] = {}
+            for i, (formula, conj) in enumerate(targets):
+                lit = z3.Bool(f"target!{i}")
+                own[str(lit)] = conj
+                s.add(z3.Implies(lit, formula))
+            lits = [z3.Bool(label) for label in own] + [z3.Bool(c.label) for c in conjuncts]
+            self.stats.calls += 1
+            if s.check(*lits) != z3.unsat:
+                return None
+            core = list(s.unsat_core())
+            # Deletion-based minimisation: drop each literal the core does not need.
+            if len(core) <= limit:
+                i = 0
+                while i < len(core):
+                    trial = core[:i] + core[i + 1 :]
+                    self.stats.calls += 1
+                    if s.check(*trial) == z3.unsat:
+                        core = list(s.unsat_core()) if len(s.unsat_core()) < len(trial) else trial
+                    else:
+                        i += 1
+            out = []
+            for lit in core:
+                name = str(lit)
+                out.append(own.get(name) or self._lits[name])
+            return out
+        finally:
+            s.pop()
+
+
+def _assert(solver: z3.Solver, formulas: list[z3.BoolRef]) -> None:
+    # The C API directly: Solver.add checks and converts every argument in Python.
+    ref = solver.ctx.ref()
+    for f in formulas:
+        z3.Z3_solver_assert(ref, solver.solver, f.as_ast())
+
+
+class _Reader:
+    """Reads the truth of many formulas in a model with one evaluation per chunk."""
+
+    CHUNK = 256
+
+    def __init__(self, formulas: dict[Hashable, z3.BoolRef]) -> None:
+        keys = list(formulas)
+        self.chunks: list[tuple[list[Hashable], z3.BitVecRef]] = []
+        for i in range(0, len(keys), self.CHUNK):
+            part = keys[i : i + self.CHUNK]
+            ctx = formulas[part[0]].ctx
+            one, zero = z3.BitVecVal(1, 1), z3.BitVecVal(0, 1)
+            ref = ctx.ref()
+            term = None
+            for k in part:
+                # Wrap each new term at once: the wrapper holds the reference count.
+                bit = z3.BitVecRef(z3.Z3_mk_ite(ref, formulas[k].as_ast(), one.as_ast(), zero.as_ast()), ctx)
+                term = bit if term is None else z3.BitVecRef(z3.Z3_mk_concat(ref, term.as_ast(), bit.as_ast()), ctx)
+            self.chunks.append((part, term))
+
+    def true_in(self, model: z3.ModelRef, open_keys: dict[Hashable, z3.BoolRef]) -> list[Hashable]:
+        out = []
+        for part, term in self.chunks:
+            if not any(k in open_keys for k in part):
+                continue
+            value = model.eval(term, model_completion=True).as_long()
+            width = len(part)
+            for j, k in enumerate(part):
+                if k in open_keys and (value >> (width - 1 - j)) & 1:
+                    out.append(k)
+        return out
