@@ -215,6 +215,14 @@ class Survey:
         if frame is not None:
             mapping_obj = mapping_obj.model_copy(update={"frame": str(frame)})
         raw = data_stage.validate(self.questionnaire, data, mapping_obj, keep_cells=keep_cells)
+        try:  # the quality checks, as the validate command reports them
+            quality = importlib.import_module("logiccheck.quality.attach")
+            policies = importlib.import_module("logiccheck.clean.policy")
+        except ModuleNotFoundError:
+            quality = None
+        if quality is not None:
+            config = policies.configured_policy(self.path)[1] if self.path is not None else None
+            raw = quality.attach_quality(self.questionnaire, raw, data, mapping_obj, config)
         from logiccheck.report.report_data import settings_used
 
         used = settings_used(self.config(), mapping_obj)
