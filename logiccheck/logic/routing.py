@@ -33,7 +33,7 @@ class Statement:
     reach: z3.BoolRef
     span: Span
     entry: Entry | None
-    effect: str  # "true" (asked/fires/applies when true) or "false" (a check fails when false)
+    effect: str  # "true": a condition that routes; "value": a derived value
 
 
 @dataclass
@@ -136,7 +136,7 @@ class RoutingAnalysis:
                                      entry.own.span, entry, "true"))
             if entry.kind == "check" and entry.require is not None:
                 out.append(Statement(f"require:{entry.index}", entry.require, entry.index, enc.applies(entry),
-                                     entry.require.span, entry, "false"))
+                                     entry.require.span, entry, "true"))
         for entry in q.entries:
             if entry.kind == "let" and enc.is_own(entry) and self.ok(entry) and entry.own is not None:
                 out.append(Statement(f"let:{entry.index}", entry.own, entry.index, TRUE, entry.own.span, entry,
@@ -162,6 +162,7 @@ class RoutingAnalysis:
             ask.roots = [f"entry:{i}"]
             if entry.kind == "item":
                 ask[("asked", i)] = enc.asked(entry.name)
+                ask[("reached", i)] = enc.reached(entry)
                 t, _ = enc.own_truth(entry)
                 if entry.own is not None:
                     ask[("not-own", i)] = _and([enc.reached(entry), _not(t)])
@@ -173,13 +174,16 @@ class RoutingAnalysis:
                     ask[("not-fires", i)] = _and([enc.reached(entry), _not(t)])
                 if entry.kind == "check" and entry.require is not None:
                     ask[("fails", i)] = enc.fails(entry)
-                    ask[("passes", i)] = _and([enc.applies(entry), _not(enc.fails(entry))])
+                    passes, _ = enc.truth(entry.require, at=entry.index)
+                    ask[("passes", i)] = _and([enc.applies(entry), passes])
         for name in enc.blocks:
             if self.block_ok(name):
                 ask.roots = [f"block:{name}"]
                 ask[("block", name)] = enc.block_reached(name)
         for st in self.statements:
             ask.roots = [st.key if st.key.startswith("block:") else f"entry:{st.entry.index}"]  # type: ignore[union-attr]
+            if st.key.startswith("block:"):
+                ask[("st-reach", st.key)] = st.reach
             try:
                 for node in n.walk(st.expr):
                     if isinstance(node, COMPARISONS):
@@ -188,16 +192,13 @@ class RoutingAnalysis:
                         self.comparisons.append((st, node))
                         ask[("cmp-true", k)] = _and([st.reach, t])
                         ask[("cmp-false", k)] = _and([st.reach, f])
+                if st.effect == "value":
+                    continue  # a derived value is judged where a statement reads it
                 ours = enc.truth(st.expr, at=st.at)
                 for reading in OTHER_READINGS:
+                    # Whether the condition holds (asked, fires, applies, passes).
                     other = enc.truth(st.expr, reading=reading, at=st.at)
-                    if st.effect == "value":
-                        # A derived value: any disagreement in its truth counts.
-                        differ = z3.Or(ours[0] != other[0], ours[1] != other[1])
-                    else:
-                        side = 0 if st.effect == "true" else 1
-                        differ = ours[side] != other[side]
-                    ask[("sensitive", st.key, reading)] = _and([st.reach, differ])
+                    ask[("sensitive", st.key, reading)] = _and([st.reach, _xor(ours[0], other[0])])
             except EncodingError:
                 continue
         for entry in q.entries:
@@ -357,6 +358,8 @@ class RoutingAnalysis:
         stack: list[Any] = [e for e in exprs if e is not None]
         if entry is not None:
             stack.extend(expr for _, expr in entry.context if expr is not None)
+            if entry.own is not None:
+                stack.append(entry.own)
             stops, skips = self.q.guards(entry)
             for g in [*stops, *skips]:
                 if g.own is not None:
@@ -380,6 +383,12 @@ class RoutingAnalysis:
                 if target.kind == "item":
                     stack.extend(e for e in target.conditions())
         return names
+
+
+def _xor(a: z3.BoolRef, b: z3.BoolRef) -> z3.BoolRef:
+    if a is b:
+        return FALSE
+    return z3.Xor(a, b)
 
 
 class _Asker:
