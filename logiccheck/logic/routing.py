@@ -125,8 +125,13 @@ class RoutingAnalysis:
             expr = block.context[-1][1] if block.context else None
             if expr is None:
                 continue
-            reach = _and([enc.block_reached(o.name) for o, _ in block.context[:-1] if o.name in enc.blocks]
-                         + [self._alive_at(block.start)])
+            # Reaching a block's condition: the outer conditions hold (each read where its
+            # block starts), no earlier stop fired, no skip spans the block's start.
+            outer = []
+            for o, e in block.context[:-1]:
+                if e is not None:
+                    outer.append(enc.truth(e, at=q.section_start.get(o.name, block.start))[0])
+            reach = _and([*outer, self._alive_at(block.start)])
             out.append(Statement(f"block:{block.name}", expr, block.start, reach, expr.span, None, "true"))
         for entry in q.entries:
             if entry.index not in enc._reach or not self.ok(entry):
