@@ -190,8 +190,12 @@ class RoutingAnalysis:
             if st.key.startswith("block:"):
                 ask[("st-reach", st.key)] = st.reach
             try:
+                whole_covered = st.key.startswith("entry:") and st.entry is not None \
+                    and st.entry.kind in ("item", "stop", "check")
                 for node in n.walk(st.expr):
-                    if isinstance(node, COMPARISONS):
+                    # A whole item, stop or check condition is judged by the checks on
+                    # those statements (unreachable-item, always-asked, stop-never, ...).
+                    if isinstance(node, COMPARISONS) and not (whole_covered and node is st.expr):
                         t, f = enc.truth(node, at=st.at)
                         k = len(self.comparisons)
                         self.comparisons.append((st, node))
@@ -391,7 +395,7 @@ class RoutingAnalysis:
 
 
 def _xor(a: z3.BoolRef, b: z3.BoolRef) -> z3.BoolRef:
-    if a is b:
+    if a is b or a.get_id() == b.get_id():
         return FALSE
     return z3.Xor(a, b)
 

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import time
 from collections.abc import Iterable
 
 import z3
@@ -17,7 +18,42 @@ from logiccheck.diagnostics import Diagnostic, Span
 BASE_SECONDS = {"single": 5.0, "multi": 8.0, "number": 7.0, "decimal": 8.0, "text": 30.0, "note": 2.0}
 # Reading speed for question text: about 240 words a minute (common practice, no source).
 WORDS_PER_SECOND = 4.0
-OPTIMISE_MS = 5000
+BUDGET_S = 3.0  # for both searches; past it the best route found so far is reported as a bound
+
+
+def _extreme(solver: z3.Solver, count: z3.ArithRef, most: int, goal: str, stats,  # type: ignore[no-untyped-def]
+             deadline: float) -> tuple | None:
+    """Binary search on the number of items asked: (model, count, proven optimal)."""
+    stats.calls += 1
+    if solver.check() != z3.sat:
+        return None
+    model = solver.model()
+    best = model.eval(count, model_completion=True).as_long()
+    lo, hi = (0, best - 1) if goal == "min" else (best + 1, most)
+    while lo <= hi:
+        left = deadline - time.monotonic()
+        if left <= 0.05:
+            return model, best, False
+        solver.set("timeout", max(50, int(left * 1000)))
+        mid = (lo + hi) // 2
+        bound = count <= mid if goal == "min" else count >= mid
+        stats.calls += 1
+        status = solver.check(bound)
+        if status == z3.sat:
+            model = solver.model()
+            best = model.eval(count, model_completion=True).as_long()
+            if goal == "min":
+                hi = best - 1
+            else:
+                lo = best + 1
+        elif status == z3.unsat:
+            if goal == "min":
+                lo = mid + 1
+            else:
+                hi = mid - 1
+        else:
+            return model, best, False
+    return model, best, True
 
 
 def item_seconds(entry) -> float:  # type: ignore[no-untyped-def]
@@ -53,32 +89,29 @@ def route_length(ctx: LintContext) -> Iterable[Diagnostic]:
     count = z3.Sum([z3.If(a.enc.asked(e.name), 1, 0) for e in items])
     seconds = {e.name: item_seconds(e) for e in items}
     results = []
-    for goal in ("min", "max"):
-        opt = z3.Optimize()
-        opt.set("timeout", OPTIMISE_MS)
-        opt.add(*a.enc.facts())
-        handle = opt.minimize(count) if goal == "min" else opt.maximize(count)
-        a.stats.calls += 1
-        status = opt.check()
-        if status != z3.sat:
+    solver = z3.Solver()
+    solver.add(*a.enc.facts())
+    start = time.monotonic()
+    for number, goal in enumerate(("min", "max")):
+        found = _extreme(solver, count, len(items), goal, a.stats, start + BUDGET_S * (number + 1) / 2)
+        if found is None:
             return
-        model = opt.model()
-        n = model.eval(count, model_completion=True).as_long()
+        model, n, exact = found
         asked = [e.name for e in items if z3.is_true(model.eval(a.enc.asked(e.name), model_completion=True))]
         minutes = sum(seconds[x] for x in asked) / 60
-        exact = handle.value() is not None
         results.append((n, minutes, asked, model, exact))
-    (lo, lo_min, lo_asked, lo_model, _), (hi, hi_min, hi_asked, hi_model, _) = results
-    if lo == hi:
+    (lo, lo_min, lo_asked, lo_model, lo_exact), (hi, hi_min, hi_asked, hi_model, hi_exact) = results
+    if lo == hi and lo_exact and hi_exact:
         return
     span = q.spec.survey_span or Span(file=q.file, line=1, column=1)
-    for word, n, minutes, asked, model in (("fewest", lo, lo_min, lo_asked, lo_model),
-                                           ("most", hi, hi_min, hi_asked, hi_model)):
+    for word, n, minutes, asked, model, exact in (("fewest", lo, lo_min, lo_asked, lo_model, lo_exact),
+                                                  ("most", hi, hi_min, hi_asked, hi_model, hi_exact)):
         witness = a.enc.witness(model, asked)
+        bound = "" if exact else (" or fewer (search stopped)" if word == "fewest" else " or more (search stopped)")
         yield ctx.diag(
             "route-length",
             span,
-            f"the {word} items on any route: {n} (about {minutes:.1f} min)",
+            f"the {word} items on any route: {n}{bound} (about {minutes:.1f} min)",
             witness=witness,
             notes=[f"route: {', '.join(asked[:30])}{' ...' if len(asked) > 30 else ''}"],
         )
