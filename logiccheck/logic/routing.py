@@ -272,8 +272,9 @@ class RoutingAnalysis:
                 g.add_edge(node, f"entry:{skip.index}")
         return g
 
-    def _solve(self) -> Cover:
-        """Split the questions into independent parts and cover each part alone."""
+    def _solve(self, only: tuple[str, ...] | None = None) -> Cover:
+        """Split the questions into independent parts and cover each part alone
+        (`only`: just the questions of those kinds, for measuring)."""
         g = self.graph
         split = nx.Graph()
         split.add_nodes_from(g.nodes)
@@ -285,6 +286,8 @@ class RoutingAnalysis:
         parts: dict[int, dict[Hashable, z3.BoolRef]] = {}
         part_roots: dict[int, set[str]] = {}
         for key, formula in self.questions.items():
+            if only is not None and key[0] not in only:
+                continue
             roots = [r for r in self.roots[key] if r in part_of]
             k = part_of[roots[0]] if roots else -1
             parts.setdefault(k, {})[key] = formula
