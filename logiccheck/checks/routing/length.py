@@ -18,7 +18,7 @@ from logiccheck.diagnostics import Diagnostic, Span
 BASE_SECONDS = {"single": 5.0, "multi": 8.0, "number": 7.0, "decimal": 8.0, "text": 30.0, "note": 2.0}
 # Reading speed for question text: about 240 words a minute (common practice, no source).
 WORDS_PER_SECOND = 4.0
-BUDGET_S = 3.0  # for both searches; past it the best route found so far is reported as a bound
+BUDGET_S = 1.5  # for both searches; past it the best route found so far is reported as a bound
 
 
 def _extreme(solver: z3.Solver, count: z3.ArithRef, most: int, goal: str, stats,  # type: ignore[no-untyped-def]
