@@ -39,12 +39,14 @@ class Oracle:
         self.q = q
         self.nr = {o.value for o in q.nonresponse}
         self.nr_labels = {o.label for o in q.nonresponse}
-        self.items = [e for e in q.entries if e.kind == "item"]
+        self.items = [e for e in q.entries if e.kind in ("item", "sample")]
 
     # ---------------------------------------------------------------- domains
     def domain(self, entry) -> list[Any]:  # type: ignore[no-untyped-def]
         stmt = entry.stmt
         kind = stmt.type.kind
+        if entry.kind == "sample":  # known before the interview: never blank
+            return sorted(o.value for o in self.q.item_codes(stmt).options)
         nr = sorted(self.nr) if kind in ("single", "number", "decimal") and not stmt.flags.strict else []
         if kind == "note":
             return [BLANK]
@@ -78,6 +80,9 @@ class Oracle:
         """The route of one respondent; None if the answers break `required`."""
         q = self.q
         w = Walk(answers)
+        for e in self.items:
+            if e.kind == "sample":
+                w.values[e.name] = answers[e.name]
         stopped = False
         skips: list[tuple[int, int]] = []  # (from, to) of fired skips
         lets: dict[str, int] = {}
@@ -194,7 +199,8 @@ class Ctx:
             if expr.name not in self.w.values:
                 return None
             v = self.w.values[expr.name]
-            allows = e.stmt.type.kind in ("single", "number", "decimal") and not e.stmt.flags.strict
+            allows = e.kind == "item" and e.stmt.type.kind in ("single", "number", "decimal") \
+                and not e.stmt.flags.strict
             return (v, allows and v in self.o.nr)
         if isinstance(expr, n.Func) and expr.func == "count":
             if not self.visible(expr.name) or expr.name not in self.w.values:

@@ -57,6 +57,8 @@ def conditions(draw, visible: list[tuple[str, str]], depth: int = 2) -> str:  # 
         ]))
     if kind == "text":
         return draw(st.sampled_from([f"answered({name})", f"asked({name})", f"not asked({name})"]))
+    if kind == "sample":
+        return draw(st.sampled_from([f"{name} = n", f"{name} != s", f"{name} in (n, s)", f"{name} > 1"]))
     if kind == "boollet":
         return draw(st.sampled_from([name, f"not {name}"]))
     if kind == "numlet":
@@ -69,6 +71,9 @@ def specs(draw) -> str:  # type: ignore[no-untyped-def]
     """A small spec: up to 7 items, sections, skips, stops and derived values."""
     lines = HEADER.splitlines()
     visible: list[tuple[str, str]] = []
+    if draw(st.booleans()):
+        lines.append('sample reg single { n = 1 "North", s = 2 "South" }')
+        visible.append(("reg", "sample"))
     n_items = draw(st.integers(1, 6))
     items_made = 0
     names_made = 0
@@ -79,7 +84,7 @@ def specs(draw) -> str:  # type: ignore[no-untyped-def]
     while items_made < n_items:
         if section_left == 0 and indent:
             indent = ""
-        choice = draw(st.sampled_from(["item", "item", "item", "section", "let", "skip", "stop", "check"]))
+        choice = draw(st.sampled_from(["item", "item", "item", "section", "grid", "let", "skip", "stop", "check"]))
         when = ""
         if visible and draw(st.booleans()):
             when = f" when {draw(conditions(visible))}"
@@ -88,6 +93,19 @@ def specs(draw) -> str:  # type: ignore[no-untyped-def]
             lines.append(f'section s{sections} "Part {sections}"{when}')
             indent = "  "
             section_left = draw(st.integers(1, 3))
+            continue
+        if choice == "grid" and visible and items_made + 2 <= n_items:
+            sections += 1
+            lines.append(f'{indent}grid s{sections} single yesno "Rows"{when}')
+            for _ in range(2):
+                items_made += 1
+                names_made += 1
+                name = f"q{names_made}"
+                row_when = f" when {draw(conditions(visible))}" if draw(st.booleans()) else ""
+                lines.append(f'{indent}  {name} "Row?"{row_when}')
+                visible.append((name, "single"))
+            if indent:
+                section_left = max(section_left - 1, 0)
             continue
         if choice == "let" and visible:
             names_made += 1
