@@ -174,6 +174,7 @@ class Encoding:
         self._stop_rank: dict[int, int] = {}  # entry index -> position among stops
         self._truth_cache: dict[tuple[int, str, int], Truth] = {}
         self._nr: dict[str, z3.BoolRef] = {}
+        self._order: dict[str, int] = {}
         self._value_cache: dict[tuple[int, str, int], Value] = {}
         self.blocks: dict[str, Block] = {}
         self._block_reach: dict[str, z3.BoolRef] = {}
@@ -663,10 +664,12 @@ class Encoding:
         """A respondent from a model: item = label / number / `blank` / `not asked`,
         sample variable = label. `names` limits and orders it; default: every item
         and sample variable in questionnaire order."""
+        order = self._order
+        if not order:
+            order.update({e.name: e.index for e in self.q.entries if e.kind in ("item", "sample") and self.is_own(e)})
         if names is None:
-            wanted = [e.name for e in self.q.entries if e.kind in ("item", "sample") and self.is_own(e)]
+            wanted = sorted(order, key=order.__getitem__)
         else:
-            order = {e.name: e.index for e in self.q.entries if e.kind in ("item", "sample")}
             wanted = sorted({x for x in names if x in order}, key=order.__getitem__)
         return {name: self.describe(model, name) for name in wanted}
 

@@ -25,6 +25,7 @@ def _extreme(solver: z3.Solver, count: z3.ArithRef, most: int, goal: str, stats,
              deadline: float) -> tuple | None:
     """Binary search on the number of items asked: (model, count, proven optimal)."""
     stats.calls += 1
+    solver.set("timeout", max(50, int((deadline - time.monotonic()) * 1000)))
     if solver.check() != z3.sat:
         return None
     model = solver.model()
