@@ -90,6 +90,23 @@ def _mk(fn: Any, parts: list[z3.BoolRef]) -> z3.BoolRef:
     return z3.BoolRef(fn(ctx.ref(), len(parts), arr), ctx)
 
 
+_INTS: dict[int, z3.ArithRef] = {}
+
+
+def _int(value: int) -> z3.ArithRef:
+    hit = _INTS.get(value)
+    if hit is None:
+        hit = _INTS[value] = z3.IntVal(value)
+    return hit
+
+
+def _eq(a: z3.ArithRef, b: z3.ArithRef) -> z3.BoolRef:
+    """a == b through the C API when the sorts agree (z3's `==` coerces in Python)."""
+    if a.sort_kind() == b.sort_kind():
+        return z3.BoolRef(z3.Z3_mk_eq(a.ctx.ref(), a.as_ast(), b.as_ast()), a.ctx)
+    return a == b
+
+
 def _and(parts: Iterable[z3.BoolRef]) -> z3.BoolRef:
     """Conjunction, folding the constants TRUE and FALSE (compared by identity)."""
     out = []
@@ -156,6 +173,8 @@ class Encoding:
         self._alive: list[z3.BoolRef] = []  # _alive[j]: none of the first j stops fired
         self._stop_rank: dict[int, int] = {}  # entry index -> position among stops
         self._truth_cache: dict[tuple[int, str, int], Truth] = {}
+        self._nr: dict[str, z3.BoolRef] = {}
+        self._order: dict[str, int] = {}
         self._value_cache: dict[tuple[int, str, int], Value] = {}
         self.blocks: dict[str, Block] = {}
         self._block_reach: dict[str, z3.BoolRef] = {}
@@ -312,7 +331,7 @@ class Encoding:
             self._values[name] = v
             allowed = sorted(set(values) | set(nr))
             if allowed:
-                self._add(_or([v == a for a in allowed]), "domain", span,
+                self._add(_or([_eq(v, _int(a)) for a in allowed]), "domain", span,
                           f"`{name}` takes the codes {', '.join(str(a) for a in allowed)}", entry.index)
         elif kind in ("number", "decimal"):
             lo = item.type.lo if item.type.lo is not None else -math.inf
@@ -519,7 +538,7 @@ class Encoding:
             right = self.val(expr.right, reading, at)
             if expr.op in ("=", "!="):
                 known = _and([left.known, right.known])
-                rel = left.val == right.val
+                rel = _eq(left.val, right.val)
             else:
                 known = _and([left.known, right.known])
                 if reading != "code":
@@ -537,7 +556,7 @@ class Encoding:
             pairs = []
             for v in expr.values:
                 other = self.val(v, reading, at)
-                pairs.append(self._pair(_and([subject.known, other.known]), subject.val == other.val, reading))
+                pairs.append(self._pair(_and([subject.known, other.known]), _eq(subject.val, other.val), reading))
             return _or(p[0] for p in pairs), _and(p[1] for p in pairs)
         if isinstance(expr, n.InRange):
             subject = self.val(expr.subject, reading, at)
@@ -585,10 +604,10 @@ class Encoding:
 
     def _val(self, expr: Any, reading: Reading, at: int) -> Value:
         if isinstance(expr, n.Num):
-            v = z3.IntVal(int(expr.value)) if expr.is_int else z3.RealVal(str(expr.value))
+            v = _int(int(expr.value)) if expr.is_int else z3.RealVal(str(expr.value))
             return Value(TRUE, v, FALSE)
         if isinstance(expr, n.Code):
-            return Value(TRUE, z3.IntVal(expr.value), TRUE if expr.label in self.nr_labels else FALSE)
+            return Value(TRUE, _int(expr.value), TRUE if expr.label in self.nr_labels else FALSE)
         if isinstance(expr, n.Ref):
             entry = self._visible(expr.name, at)
             if entry is None:
@@ -600,8 +619,11 @@ class Encoding:
             v = self._values.get(expr.name)
             if v is None:
                 raise EncodingError(f"`{expr.name}` has no number or code value")
-            allows = entry.kind == "item" and self.q.allows_nonresponse(entry.stmt)
-            nr = _or([v == c for c in self.nr_values]) if allows else FALSE
+            nr = self._nr.get(expr.name)
+            if nr is None:
+                allows = entry.kind == "item" and self.q.allows_nonresponse(entry.stmt)
+                nr = _or([v == c for c in self.nr_values]) if allows else FALSE
+                self._nr[expr.name] = nr
             return Value(self._answered[expr.name], v, nr)
         if isinstance(expr, n.Func) and expr.func == "count":
             entry = self._visible(expr.name, at)
@@ -642,10 +664,12 @@ class Encoding:
         """A respondent from a model: item = label / number / `blank` / `not asked`,
         sample variable = label. `names` limits and orders it; default: every item
         and sample variable in questionnaire order."""
+        order = self._order
+        if not order:
+            order.update({e.name: e.index for e in self.q.entries if e.kind in ("item", "sample") and self.is_own(e)})
         if names is None:
-            wanted = [e.name for e in self.q.entries if e.kind in ("item", "sample") and self.is_own(e)]
+            wanted = sorted(order, key=order.__getitem__)
         else:
-            order = {e.name: e.index for e in self.q.entries if e.kind in ("item", "sample")}
             wanted = sorted({x for x in names if x in order}, key=order.__getitem__)
         return {name: self.describe(model, name) for name in wanted}
 

@@ -20,6 +20,7 @@ from logiccheck.model.resolve import pipes_in
 
 COMPARISONS = (n.Compare, n.InList, n.InRange, n.Has)
 OTHER_READINGS: tuple[Reading, ...] = ("blank", "code")
+GROUP_QUESTIONS = 600  # questions per solver, summed over independent parts
 
 
 @dataclass
@@ -33,7 +34,7 @@ class Statement:
     reach: z3.BoolRef
     span: Span
     entry: Entry | None
-    effect: str  # "true" (asked/fires/applies when true) or "false" (a check fails when false)
+    effect: str  # "true": a condition that routes; "value": a derived value
 
 
 @dataclass
@@ -125,8 +126,13 @@ class RoutingAnalysis:
             expr = block.context[-1][1] if block.context else None
             if expr is None:
                 continue
-            reach = _and([enc.block_reached(o.name) for o, _ in block.context[:-1] if o.name in enc.blocks]
-                         + [self._alive_at(block.start)])
+            # Reaching a block's condition: the outer conditions hold (each read where its
+            # block starts), no earlier stop fired, no skip spans the block's start.
+            outer = []
+            for o, e in block.context[:-1]:
+                if e is not None:
+                    outer.append(enc.truth(e, at=q.section_start.get(o.name, block.start))[0])
+            reach = _and([*outer, self._alive_at(block.start)])
             out.append(Statement(f"block:{block.name}", expr, block.start, reach, expr.span, None, "true"))
         for entry in q.entries:
             if entry.index not in enc._reach or not self.ok(entry):
@@ -136,7 +142,7 @@ class RoutingAnalysis:
                                      entry.own.span, entry, "true"))
             if entry.kind == "check" and entry.require is not None:
                 out.append(Statement(f"require:{entry.index}", entry.require, entry.index, enc.applies(entry),
-                                     entry.require.span, entry, "false"))
+                                     entry.require.span, entry, "true"))
         for entry in q.entries:
             if entry.kind == "let" and enc.is_own(entry) and self.ok(entry) and entry.own is not None:
                 out.append(Statement(f"let:{entry.index}", entry.own, entry.index, TRUE, entry.own.span, entry,
@@ -162,6 +168,7 @@ class RoutingAnalysis:
             ask.roots = [f"entry:{i}"]
             if entry.kind == "item":
                 ask[("asked", i)] = enc.asked(entry.name)
+                ask[("reached", i)] = enc.reached(entry)
                 t, _ = enc.own_truth(entry)
                 if entry.own is not None:
                     ask[("not-own", i)] = _and([enc.reached(entry), _not(t)])
@@ -173,31 +180,35 @@ class RoutingAnalysis:
                     ask[("not-fires", i)] = _and([enc.reached(entry), _not(t)])
                 if entry.kind == "check" and entry.require is not None:
                     ask[("fails", i)] = enc.fails(entry)
-                    ask[("passes", i)] = _and([enc.applies(entry), _not(enc.fails(entry))])
+                    passes, _ = enc.truth(entry.require, at=entry.index)
+                    ask[("passes", i)] = _and([enc.applies(entry), passes])
         for name in enc.blocks:
             if self.block_ok(name):
                 ask.roots = [f"block:{name}"]
                 ask[("block", name)] = enc.block_reached(name)
         for st in self.statements:
             ask.roots = [st.key if st.key.startswith("block:") else f"entry:{st.entry.index}"]  # type: ignore[union-attr]
+            if st.key.startswith("block:"):
+                ask[("st-reach", st.key)] = st.reach
             try:
+                whole_covered = st.key.startswith("entry:") and st.entry is not None \
+                    and st.entry.kind in ("item", "stop", "check")
                 for node in n.walk(st.expr):
-                    if isinstance(node, COMPARISONS):
+                    # A whole item, stop or check condition is judged by the checks on
+                    # those statements (unreachable-item, always-asked, stop-never, ...).
+                    if isinstance(node, COMPARISONS) and not (whole_covered and node is st.expr):
                         t, f = enc.truth(node, at=st.at)
                         k = len(self.comparisons)
                         self.comparisons.append((st, node))
                         ask[("cmp-true", k)] = _and([st.reach, t])
                         ask[("cmp-false", k)] = _and([st.reach, f])
+                if st.effect == "value":
+                    continue  # a derived value is judged where a statement reads it
                 ours = enc.truth(st.expr, at=st.at)
                 for reading in OTHER_READINGS:
+                    # Whether the condition holds (asked, fires, applies, passes).
                     other = enc.truth(st.expr, reading=reading, at=st.at)
-                    if st.effect == "value":
-                        # A derived value: any disagreement in its truth counts.
-                        differ = z3.Or(ours[0] != other[0], ours[1] != other[1])
-                    else:
-                        side = 0 if st.effect == "true" else 1
-                        differ = ours[side] != other[side]
-                    ask[("sensitive", st.key, reading)] = _and([st.reach, differ])
+                    ask[("sensitive", st.key, reading)] = _and([st.reach, _xor(ours[0], other[0])])
             except EncodingError:
                 continue
         for entry in q.entries:
@@ -262,8 +273,9 @@ class RoutingAnalysis:
                 g.add_edge(node, f"entry:{skip.index}")
         return g
 
-    def _solve(self) -> Cover:
-        """Split the questions into independent parts and cover each part alone."""
+    def _solve(self, only: tuple[str, ...] | None = None) -> Cover:
+        """Split the questions into independent parts and cover each part alone
+        (`only`: just the questions of those kinds, for measuring)."""
         g = self.graph
         split = nx.Graph()
         split.add_nodes_from(g.nodes)
@@ -275,14 +287,31 @@ class RoutingAnalysis:
         parts: dict[int, dict[Hashable, z3.BoolRef]] = {}
         part_roots: dict[int, set[str]] = {}
         for key, formula in self.questions.items():
+            if only is not None and key[0] not in only:
+                continue
             roots = [r for r in self.roots[key] if r in part_of]
             k = part_of[roots[0]] if roots else -1
             parts.setdefault(k, {})[key] = formula
             part_roots.setdefault(k, set()).update(roots)
         self.parts = len(parts)
+        # Independent parts are solved a few at a time: one model then answers questions
+        # in all of them, which saves more calls than the larger solver costs.
+        groups: list[tuple[dict[Hashable, z3.BoolRef], set[str] | None]] = []
+        current: dict[Hashable, z3.BoolRef] = {}
+        roots: set[str] = set()
+        for k in sorted(parts, key=lambda k: (k < 0, k)):
+            if k < 0:
+                groups.append((parts[k], None))
+                continue
+            current.update(parts[k])
+            roots |= part_roots[k]
+            if len(current) >= GROUP_QUESTIONS:
+                groups.append((current, self.closure(roots)))
+                current, roots = {}, set()
+        if current:
+            groups.append((current, self.closure(roots)))
         total = Cover()
-        for k, questions in parts.items():
-            subjects = self.closure(part_roots[k]) if k >= 0 else None
+        for questions, subjects in groups:
             got = self.queries.cover(questions, subjects, first=lambda key: key[0] in ("asked", "reached", "block"))
             total.models.update(got.models)
             total.unsat.update(got.unsat)
@@ -357,6 +386,8 @@ class RoutingAnalysis:
         stack: list[Any] = [e for e in exprs if e is not None]
         if entry is not None:
             stack.extend(expr for _, expr in entry.context if expr is not None)
+            if entry.own is not None:
+                stack.append(entry.own)
             stops, skips = self.q.guards(entry)
             for g in [*stops, *skips]:
                 if g.own is not None:
@@ -380,6 +411,12 @@ class RoutingAnalysis:
                 if target.kind == "item":
                     stack.extend(e for e in target.conditions())
         return names
+
+
+def _xor(a: z3.BoolRef, b: z3.BoolRef) -> z3.BoolRef:
+    if a is b or a.get_id() == b.get_id():
+        return FALSE
+    return z3.Xor(a, b)
 
 
 class _Asker:

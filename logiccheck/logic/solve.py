@@ -36,8 +36,6 @@ class Queries:
     def __init__(self, enc: Encoding, stats: Stats | None = None) -> None:
         self.enc = enc
         self.stats = stats or Stats()
-        self.solver = z3.Solver()
-        self.solver.add(*enc.facts())
         self._lits: dict[str, Conjunct] = {c.label: c for c in enc.conjuncts}
         self.phase: int | None = 5  # random phases: models spread over many branches
         self.by_subject: dict[str | None, list[Conjunct]] = {}
@@ -56,10 +54,13 @@ class Queries:
             out.extend(self.by_subject.get(subject, ()))
         return out
 
-    def check(self, *formulas: z3.BoolRef) -> z3.ModelRef | None:
+    def check(self, *formulas: z3.BoolRef, subjects: Iterable[str] | None = None) -> z3.ModelRef | None:
+        """One question against the constraints of `subjects` (all for None)."""
         self.stats.calls += 1
-        if self.solver.check(*formulas) == z3.sat:
-            return self.solver.model()
+        s = z3.Solver()
+        _assert(s, [c.formula for c in self.conjuncts_of(subjects)])
+        if s.check(*formulas) == z3.sat:
+            return s.model()
         return None
 
     def cover(self, questions: dict[Hashable, z3.BoolRef], subjects: Iterable[str] | None = None,

@@ -1,0 +1,179 @@
+"""How conditions read: comparisons that cannot go both ways, readings that differ,
+piped values that may be missing."""
+
+from __future__ import annotations
+
+from collections.abc import Iterable
+
+import z3
+
+from logiccheck.checks.context import LintContext
+from logiccheck.checks.registry import register
+from logiccheck.checks.routing.common import analysis, explain, target
+from logiccheck.diagnostics import Diagnostic
+from logiccheck.logic.routing import Statement
+
+READING_WORDS = {
+    "blank": "a blank counts as a value unequal to every code",
+    "code": "a non-response code counts as its plain number",
+}
+
+
+def _reachable(a, st: Statement) -> bool:  # type: ignore[no-untyped-def]
+    if st.key.startswith("block:"):
+        return a.facts.possible(("st-reach", st.key))
+    if st.key.startswith("let:"):
+        return True
+    entry = st.entry
+    if st.key.startswith("require:"):
+        return a.facts.possible(("fires", entry.index))
+    return a.facts.possible(("reached", entry.index))
+
+
+def _covered(st: Statement, can_true: bool) -> bool:
+    """A whole condition that cannot go both ways is another check's finding: an item's
+    (unreachable-item / always-asked), a stop's (stop-never / stop-always), a check's
+    `when` (check-never-applies); a `require` or section condition never true
+    (check-always-fails / unreachable-item)."""
+    if st.key.startswith("entry:"):
+        return st.entry is not None and st.entry.kind in ("item", "stop", "check")
+    if st.key.startswith(("require:", "block:")):
+        return not can_true
+    return False
+
+
+def _roots(st: Statement) -> list[str]:
+    return [st.key] if st.key.startswith("block:") else [f"entry:{st.entry.index}"]  # type: ignore[union-attr]
+
+
+@register(
+    "impossible-comparison",
+    severity="warning",
+    stage="routing",
+    summary="A comparison is never true, or never false, for anyone who reaches it.",
+    what="A comparison inside a condition, derived value or edit rule that cannot go both "
+    "ways for respondents who reach the statement: out of the item's range (`trips > 5000` "
+    "on a 1..2000 item), already decided by the section condition, or always reading an "
+    "item that has no value there. A whole condition that always holds is `always-asked`.",
+    why="The condition does not test what its author meant; whatever it guards is always or "
+    "never asked for a reason nobody wrote down.",
+    bad='trips: number 1..2000 "Trips?" strict\nheavy: text "Why so many?" when trips > 5000',
+    good='trips: number 1..2000 "Trips?" strict\nheavy: text "Why so many?" when trips > 500',
+)
+def impossible_comparison(ctx: LintContext) -> Iterable[Diagnostic]:
+    a = analysis(ctx)
+    for k, (st, node) in enumerate(a.comparisons):
+        if not _reachable(a, st):
+            continue
+        can_true = a.facts.possible(("cmp-true", k))
+        can_false = a.facts.possible(("cmp-false", k))
+        if can_true and can_false:
+            continue
+        text = a.enc.source(node.span)
+        if node is st.expr and _covered(st, can_true):
+            continue
+        if not can_true:
+            t, _ = a.enc.truth(node, at=st.at)
+            formula = z3.And(st.reach, t)
+            core = a.why_not(*target(formula, node.span, f"`{text}` is true"), roots=_roots(st))
+            why, related = explain(core, "none")
+            how = "never true nor false: it reads an item that has no value here" if not can_false else "never true"
+            message = f"`{text}` is {how} for anyone who reaches it"
+            if not can_false:
+                related = []
+            elif why and core:
+                message += f": {why}"
+            yield ctx.diag("impossible-comparison", node.span, message, item=st.entry.name if st.entry else None,
+                           related=related)
+            continue
+        # Never false.
+        model = a.facts.model(("cmp-true", k))
+        witness = a.enc.witness(model, a.cone([st.expr], st.entry)) if model is not None else None
+        yield ctx.diag(
+            "impossible-comparison",
+            node.span,
+            f"`{text}` is never false for anyone who reaches it, so it tests nothing here",
+            item=st.entry.name if st.entry else None,
+            witness=witness,
+        )
+
+
+@register(
+    "missing-sensitive",
+    severity="warning",
+    stage="routing",
+    summary="Another common reading of blanks or non-response codes routes this respondent differently.",
+    what="A condition whose outcome, for some respondent who reaches it, changes when a blank "
+    "is read as a value unequal to every code (so `x != yes` is true) or a non-response "
+    "code as its plain number (so `x >= 4` is true for 98). Typical under `not`, `!=`, or "
+    "an ordering comparison on an item that allows non-response codes. The witness is that "
+    "respondent.",
+    why="Fielding tools and analysis scripts read missing values in these ways; where they "
+    "disagree with the spec, the export will not match the routing you wrote.",
+    bad='used: single yesno "Used?"\nwhy_not: text "Why not?" when used != yes',
+    good='used: single yesno "Used?"\nwhy_not: text "Why not?" when used = no',
+)
+def missing_sensitive(ctx: LintContext) -> Iterable[Diagnostic]:
+    a = analysis(ctx)
+    for st in a.statements:
+        hits = [r for r in ("blank", "code") if a.facts.possible(("sensitive", st.key, r))]
+        if not hits:
+            continue
+        reading = hits[0]
+        model = a.facts.model(("sensitive", st.key, reading))
+        ours, _ = a.enc.truth(st.expr, at=st.at)
+        holds = z3.is_true(model.eval(ours, model_completion=True))
+        text = a.enc.source(st.expr.span)
+        ours_word = "holds" if holds else "does not hold"
+        other_word = "does not hold" if holds else "holds"
+        message = (
+            f"`{text}` {ours_word} for this respondent, but {other_word} if {READING_WORDS[reading]}; "
+            "make the intent explicit (`answered(...)`, `strict`, `in (...)`)"
+        )
+        notes = [f"it also differs if {READING_WORDS[r]}" for r in hits[1:]]
+        yield ctx.diag(
+            "missing-sensitive",
+            st.expr.span,
+            message,
+            item=st.entry.name if st.entry is not None else st.key.split(":", 1)[1],
+            witness=a.enc.witness(model, a.cone([st.expr], st.entry)),
+            notes=notes,
+        )
+
+
+@register(
+    "unsafe-pipe",
+    severity="warning",
+    stage="routing",
+    summary="A text pipes in a value that may be missing when it is shown.",
+    what="A `{name}` in an item's or stop's text where some respondent who is shown the text "
+    "has no value for `name`: not asked, left blank, or a derived value that is unknown.",
+    why="The respondent sees an empty gap or a placeholder (\"You took about  trips\"), "
+    "which reads as a broken survey and biases the answer.",
+    bad='trips: number 1..2000 "Trips?"\npraise: text "You took {trips} trips. Why?"',
+    good='trips: number 1..2000 "Trips?"\npraise: text "You took {trips} trips. Why?" when answered(trips)',
+)
+def unsafe_pipe(ctx: LintContext) -> Iterable[Diagnostic]:
+    a = analysis(ctx)
+    for k, (entry, name, span, _shown) in enumerate(a.pipes):
+        model = a.facts.model(("pipe", k))
+        if model is None:
+            continue
+        target_entry = ctx.q.symbols[name]
+        names = [*a.cone([], entry), *([name] if target_entry.kind != "let" else a.cone([target_entry.own]))]
+        if entry.kind == "item":
+            names.append(entry.name)
+        yield ctx.diag(
+            "unsafe-pipe",
+            span,
+            f"`{{{name}}}` may be empty when {_shown_word(entry)}: `{name}` can have no value here",
+            item=entry.name,
+            witness=a.enc.witness(model, names),
+            related=[(target_entry.span, f"`{name}` is defined here")],
+        )
+
+
+def _shown_word(entry) -> str:  # type: ignore[no-untyped-def]
+    if entry.kind == "stop":
+        return f"stop `{entry.name}` ends the interview"
+    return f"`{entry.name}` is asked"
