@@ -27,19 +27,31 @@ ROUTING_CHECKS = {
 
 
 def marks(path: Path, kind: str) -> dict[int, set[str]]:
+    """Marks on a statement's own line, or alone on the line(s) just above it."""
     out: dict[int, set[str]] = {}
+    pending: set[str] = set()
     for number, line in enumerate(path.read_text(encoding="utf-8").split("\n"), start=1):
         match = MARK.search(line)
+        names = set()
         if match and match.group(1) == kind:
-            out[number] = {name.strip() for name in match.group(2).split(",") if name.strip()}
+            names = {name.strip() for name in match.group(2).split(",") if name.strip()}
+        if line.strip().startswith("#"):
+            pending |= names
+            continue
+        if not line.strip():
+            continue
+        names |= pending
+        pending = set()
+        if names:
+            out[number] = names
     return out
 
 
 def findings(path: Path) -> dict[int, set[str]]:
-    """Errors and warnings by line (info records such as route lengths are not faults)."""
+    """Findings by line; route lengths and notes on skipped analysis are facts, not faults."""
     out: dict[int, set[str]] = {}
     for d in run_checks(load_file(path)):
-        if d.severity.value != "info":
+        if d.check not in ("route-length", "routing-skipped"):
             out.setdefault(d.line, set()).add(d.check)
     return out
 
