@@ -1,6 +1,8 @@
 """Routing analysis speed: time and solver calls for generated specs of growing size.
 
-    python benchmarks/bench_routing.py [SIZES...]
+    python benchmarks/bench_routing.py [SIZES...] [--naive-max N]
+
+(the naive baseline runs for sizes up to N, default 2000; it takes minutes there)
 
 Each spec has modules of gates nested 6 deep with follow-ups, grids, derived values,
 skips, stops and a few planted unreachable items. The baseline, measured in the same
@@ -118,7 +120,7 @@ def batched_reach(analysis: RoutingAnalysis) -> tuple[float, int]:
     return time.perf_counter() - start, analysis.stats.calls - before
 
 
-def main(sizes: list[int]) -> None:
+def main(sizes: list[int], naive_max: int = 2000) -> None:
     print(f"{'items':>6} {'load s':>7} {'static s':>8} {'routing s':>9} {'calls':>6} {'parts':>6} "
           f"{'reach s':>8} {'calls':>6} {'naive reach s':>13} {'calls':>6} {'speed-up':>8}")
     for size in sizes:
@@ -136,7 +138,7 @@ def main(sizes: list[int]) -> None:
         t3 = time.perf_counter()
         analysis = ctx.shared["routing"]
         reach_t, reach_calls = batched_reach(analysis)
-        naive_t, naive_calls = naive_reach(analysis) if size <= 2000 else (float("nan"), 0)
+        naive_t, naive_calls = naive_reach(analysis) if size <= naive_max else (float("nan"), 0)
         speedup = naive_t / reach_t if naive_calls else float("nan")
         print(f"{len(loaded.questionnaire.items()):>6} {t1 - t0:>7.2f} {t2 - t1:>8.2f} {t3 - t2:>9.2f} "
               f"{analysis.stats.calls:>6} {analysis.parts:>6} {reach_t:>8.2f} {reach_calls:>6} {naive_t:>13.2f} "
@@ -149,4 +151,10 @@ def main(sizes: list[int]) -> None:
 
 
 if __name__ == "__main__":
-    main([int(a) for a in sys.argv[1:]] or [500, 1000, 2000, 5000])
+    args = sys.argv[1:]
+    cap = 2000
+    if "--naive-max" in args:
+        at = args.index("--naive-max")
+        cap = int(args[at + 1])
+        del args[at : at + 2]
+    main([int(a) for a in args] or [500, 1000, 2000, 5000], cap)

@@ -175,6 +175,7 @@ class Encoding:
         self._truth_cache: dict[tuple[int, str, int], Truth] = {}
         self._nr: dict[str, z3.BoolRef] = {}
         self._order: dict[str, int] = {}
+        self._lines: list[str] = []
         self._value_cache: dict[tuple[int, str, int], Value] = {}
         self.blocks: dict[str, Block] = {}
         self._block_reach: dict[str, z3.BoolRef] = {}
@@ -256,7 +257,9 @@ class Encoding:
 
     def source(self, span: Span) -> str:
         """The spec text of a span (one line, or the first line of several)."""
-        line = self.q.source_line(span.line)
+        if not self._lines:
+            self._lines.extend(self.q.lines)
+        line = self._lines[span.line - 1] if 1 <= span.line <= len(self._lines) else ""
         if span.end_line in (None, span.line) and span.end_column is not None:
             return line[span.column - 1 : span.end_column - 1].strip()
         return line[span.column - 1 :].strip()

@@ -124,14 +124,17 @@ class RoutingAnalysis:
         out = []
         for block in enc.blocks.values():
             expr = block.context[-1][1] if block.context else None
-            if expr is None:
+            if expr is None or not self.block_ok(block.name):
                 continue
             # Reaching a block's condition: the outer conditions hold (each read where its
             # block starts), no earlier stop fired, no skip spans the block's start.
             outer = []
-            for o, e in block.context[:-1]:
-                if e is not None:
-                    outer.append(enc.truth(e, at=q.section_start.get(o.name, block.start))[0])
+            try:
+                for o, e in block.context[:-1]:
+                    if e is not None:
+                        outer.append(enc.truth(e, at=q.section_start.get(o.name, block.start))[0])
+            except EncodingError:
+                continue
             reach = _and([*outer, self._alive_at(block.start)])
             out.append(Statement(f"block:{block.name}", expr, block.start, reach, expr.span, None, "true"))
         for entry in q.entries:

@@ -38,6 +38,7 @@ class Queries:
         self.stats = stats or Stats()
         self._lits: dict[str, Conjunct] = {c.label: c for c in enc.conjuncts}
         self.phase: int | None = 5  # random phases: models spread over many branches
+        self.relevancy = 0
         self.by_subject: dict[str | None, list[Conjunct]] = {}
         for c in enc.conjuncts:
             self.by_subject.setdefault(c.subject, []).append(c)
@@ -100,6 +101,9 @@ class Queries:
         self.solver = z3.SimpleSolver()
         if self.phase is not None:
             self.solver.set("phase_selection", self.phase)
+        # Relevancy propagation costs more than it saves on these many small Boolean
+        # definitions (measured with benchmarks/bench_routing.py).
+        self.solver.set("relevancy", self.relevancy)
         _assert(self.solver, [c.formula for c in self.conjuncts_of(subjects)])
         self.solver.push()
         try:

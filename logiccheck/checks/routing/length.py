@@ -90,7 +90,8 @@ def route_length(ctx: LintContext) -> Iterable[Diagnostic]:
     count = z3.Sum([z3.If(a.enc.asked(e.name), 1, 0) for e in items])
     seconds = {e.name: item_seconds(e) for e in items}
     results = []
-    solver = z3.Solver()
+    solver = z3.SimpleSolver()
+    solver.set("relevancy", 0)  # faster here, as in the routing cover
     solver.add(*a.enc.facts())
     start = time.monotonic()
     for number, goal in enumerate(("min", "max")):
