@@ -25,7 +25,7 @@ from logiccheck.data.frame import (
     type_cells,
 )
 from logiccheck.data.mapping import DataMapping
-from logiccheck.data.readers import DEFAULT_CHUNK_ROWS, open_export, prefetch
+from logiccheck.data.readers import DEFAULT_CHUNK_ROWS, open_export, prefetch, rows_for
 from logiccheck.data.result import TABLE_COLUMNS, ValidationResult
 from logiccheck.diagnostics import Severity
 from logiccheck.model.questionnaire import Questionnaire
@@ -45,7 +45,7 @@ def validate(
     mapping: DataMapping | None = None,
     *,
     encoding: str | None = None,
-    chunk_rows: int = DEFAULT_CHUNK_ROWS,
+    chunk_rows: int | None = DEFAULT_CHUNK_ROWS,
     keep_cells: bool = True,
     stream: bool | None = None,
     progress: Progress | None = None,
@@ -64,6 +64,7 @@ def validate(
     else:
         table = source if isinstance(source, pa.Table) else _table_from_frame(source)
         header = list(table.column_names)
+        chunk_rows = chunk_rows or rows_for(len(header))
         chunks = (table.slice(s, chunk_rows) for s in range(0, max(table.num_rows, 1), chunk_rows))
         name = None
     return Validator(q, mapping, header, keep_cells=keep_cells).run(chunks, name, progress, timings)
