@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import difflib
 import time
 from collections.abc import Callable, Iterable
 from pathlib import Path
@@ -246,15 +247,27 @@ class Validator:
     def _file_blocks(self) -> list[FindingBlock]:
         out = []
         empty = np.array([], dtype=np.int64)
+        missing_cols = [col for _, col in self.layout.missing]
+        unknown = set(self.layout.unknown)
         for name, col in self.layout.missing:
             if name == "id":
                 msg = f"the export has no respondent id column `{col}`; rows are numbered instead (set `id` in the mapping)"
                 out.append(FindingBlock("missing-column", _sev("missing-column"), None, msg, empty))
+                continue
+            hint = ""
+            plan = self.layout.plans.get(name)
+            if plan is not None and plan.kind == "multi" and name in unknown and self.mapping.multi.layout == "columns":
+                hint = f" (the export has one column `{name}`: if it lists the chosen codes, set `layout = \"delimited\"` under [data.multi])"
             else:
-                msg = f"the export has no column `{col}` for `{name}`; every answer to it counts as missing"
-                out.append(FindingBlock("missing-column", _sev("missing-column"), name, msg, empty))
+                close = difflib.get_close_matches(col, self.layout.unknown, n=1, cutoff=0.75)
+                if close:
+                    hint = f" (is `{close[0]}` the same? map it under [data.columns]: {name} = \"{close[0]}\")"
+            msg = f"the export has no column `{col}` for `{name}`; every answer to it counts as missing{hint}"
+            out.append(FindingBlock("missing-column", _sev("missing-column"), name, msg, empty))
         for col in self.layout.unknown:
-            msg = f"column `{col}` is not in the spec (no item, grid row or sample variable of that name); it is ignored"
+            close = difflib.get_close_matches(col, missing_cols, n=1, cutoff=0.75)
+            hint = f"; did you mean `{close[0]}`?" if close else ""
+            msg = f"column `{col}` is not in the spec (no item, grid row or sample variable of that name); it is ignored{hint}"
             out.append(FindingBlock("unknown-column", _sev("unknown-column"), None, msg, empty))
         return out
 
