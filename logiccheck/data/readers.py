@@ -18,7 +18,7 @@ import pyarrow as pa
 import pyarrow.csv as pacsv
 
 DEFAULT_CHUNK_ROWS = None  # chosen from the number of columns: about CHUNK_CELLS cells a chunk
-CHUNK_CELLS = 6_000_000
+CHUNK_CELLS = 12_000_000
 MAX_CHUNK_ROWS = 200_000
 
 
