@@ -332,7 +332,9 @@ class Validator:
         return out
 
     def _allowed(self, plan: NamePlan) -> str:
-        nr = "" if plan.nonresponse is None or not plan.nonresponse.size else " or a non-response code"
+        nr = ""
+        if plan.nonresponse is not None and plan.nonresponse.size:
+            nr = " or a non-response code (" + ", ".join(f"{int(v)}" for v in plan.nonresponse) + ")"
         if plan.kind == "multi":
             return "; option cells hold 1 (chosen), 0 (not chosen) or blank"
         if plan.allowed is not None:
