@@ -139,7 +139,9 @@ def _open_delimited(
     )
     parse = pacsv.ParseOptions(delimiter=delimiter, newlines_in_values=True)
     convert = pacsv.ConvertOptions(
-        column_types={c: pa.string() for c in names},
+        # Dictionary-encoded text: every cell is kept as written, and each column is
+        # judged once per distinct text rather than once per cell.
+        column_types={c: pa.dictionary(pa.int32(), pa.string()) for c in names},
         strings_can_be_null=True,
         quoted_strings_can_be_null=True,
         null_values=[""],
