@@ -165,7 +165,6 @@ def distinct(arr: pa.Array | pa.ChunkedArray) -> Distinct:
     chunks = arr.chunks if isinstance(arr, pa.ChunkedArray) else [arr]
     dictionaries: list[pa.Array] = []
     parts: list[np.ndarray] = []
-    nulls: list[np.ndarray] = []
     base = 0
     for chunk in chunks:
         if not pa.types.is_dictionary(chunk.type):
@@ -176,16 +175,15 @@ def distinct(arr: pa.Array | pa.ChunkedArray) -> Distinct:
         if not pa.types.is_string(dictionary.type):
             dictionary = pc.cast(dictionary, pa.string())
         dictionaries.append(dictionary)
-        idx = np.asarray(chunk.indices.fill_null(0).to_numpy(zero_copy_only=False), dtype=np.int64)
-        parts.append(idx + base if base else idx)
-        nulls.append(np.asarray(chunk.is_null()))
+        indices = chunk.indices
+        idx = np.asarray((indices.fill_null(-1) if indices.null_count else indices).to_numpy(zero_copy_only=False))
+        parts.append(np.where(idx < 0, -1, idx + base) if base else idx)
         base += len(dictionary)
     if not parts:
         return Distinct(pa.array([], pa.string()), np.zeros(0, dtype=np.int64))
     index = np.concatenate(parts) if len(parts) > 1 else parts[0]
-    null = np.concatenate(nulls) if len(nulls) > 1 else nulls[0]
-    if null.any():
-        index[null] = base
+    # -1 (a null cell) indexes the last slot of every per-text table, which `per_cell`
+    # reserves for nulls.
     dictionary = pa.concat_arrays(dictionaries) if len(dictionaries) > 1 else dictionaries[0]
     return Distinct(dictionary, index)
 
@@ -214,8 +212,14 @@ def _marker_masks(d: Distinct, mapping: DataMapping) -> tuple[np.ndarray | None,
 
 
 def _numbers_of(d: Distinct, is_blank: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Per cell (present, value, parsed) from the distinct texts: one pyarrow cast of the
-    dictionary, and a text-by-text look only when some text is not a number."""
+    """Per cell (present, value, parsed) from the distinct texts."""
+    present, value, parsed = _numbers_distinct(d, is_blank)
+    return d.per_cell(present, False), d.per_cell(value, np.nan), d.per_cell(parsed, True)
+
+
+def _numbers_distinct(d: Distinct, is_blank: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Per distinct text (present, value, parsed): one pyarrow cast of the dictionary, and
+    a text-by-text look only when some text is not a number."""
     k = len(d.dictionary)
     try:
         trimmed = pc.utf8_trim_whitespace(d.dictionary)
@@ -240,7 +244,7 @@ def _numbers_of(d: Distinct, is_blank: np.ndarray) -> tuple[np.ndarray, np.ndarr
                 continue
             value[i] = v
     value = np.where(parsed, value, np.nan)
-    return d.per_cell(~is_blank, False), d.per_cell(value, np.nan), d.per_cell(parsed, True)
+    return ~is_blank, value, parsed
 
 
 def parse_numbers(arr: pa.Array | pa.ChunkedArray, blank: set[str]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -275,12 +279,32 @@ def type_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping) -> Cells:
         present = d.per_cell(~is_blank, False)
         return Cells(plan, present, present.copy(), np.zeros(rows, dtype=np.int8), not_shown=not_shown, unanswered=unanswered)
     if _is_text(arr):
+        # Judge each distinct text once, then spread the verdicts over the cells.
         d = distinct(arr)
         not_shown, unanswered, is_blank = _marker_masks(d, mapping)
-        present, value, parsed = _numbers_of(d, is_blank)
-    else:
-        present, value, parsed = parse_numbers(arr, blank)
-    reason = np.zeros(rows, dtype=np.int8)
+        present_d, value_d, parsed_d = _numbers_distinct(d, is_blank)
+        reason_d, valid_d, value_d, nr_d = judge(plan, present_d, value_d, parsed_d)
+        return Cells(
+            plan,
+            d.per_cell(present_d, False),
+            d.per_cell(valid_d, False),
+            d.per_cell(reason_d, OK),
+            d.per_cell(value_d, np.nan),
+            d.per_cell(nr_d, False),
+            not_shown=not_shown,
+            unanswered=unanswered,
+        )
+    present, value, parsed = parse_numbers(arr, blank)
+    reason, valid, value, nr = judge(plan, present, value, parsed)
+    return Cells(plan, present, valid, reason, value, nr)
+
+
+def judge(
+    plan: NamePlan, present: np.ndarray, value: np.ndarray, parsed: np.ndarray
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """(reason, valid, value, nr) for a single, number or decimal item's cells (or for the
+    distinct texts of its column)."""
+    reason = np.zeros(len(present), dtype=np.int8)
     reason[present & ~parsed] = NOT_A_NUMBER
     num = present & parsed
     is_nr = num & np.isin(value, plan.nonresponse)
@@ -292,15 +316,15 @@ def type_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping) -> Cells:
             reason[num & ~is_nr & (np.floor(value) != value)] = NOT_INTEGER
         lo = -np.inf if plan.lo is None else plan.lo
         hi = np.inf if plan.hi is None else plan.hi
-        out = num & ~is_nr & ((value < lo) | (value > hi)) & (reason == OK)
+        with np.errstate(invalid="ignore"):
+            out = num & ~is_nr & ((value < lo) | (value > hi)) & (reason == OK)
         reason[out] = OUT_OF_RANGE
-    if plan.entry.kind == "item" and plan.entry.stmt.flags.strict and plan.entry.stmt.type.kind != "text":
+    if plan.entry.kind == "item" and plan.entry.stmt.flags.strict:
         # A non-response code on a strict item: name it as such rather than "not a code".
         strict_nr = num & (reason != OK) & np.isin(value, plan.global_nr)
         reason[strict_nr] = NONRESPONSE_STRICT
     valid = present & (reason == OK)
-    value = np.where(num, value, np.nan)
-    return Cells(plan, present, valid, reason, value, is_nr & valid, not_shown=not_shown, unanswered=unanswered)
+    return reason, valid, np.where(num, value, np.nan), is_nr & valid
 
 
 def _or(a: np.ndarray | None, b: np.ndarray | None) -> np.ndarray | None:
