@@ -284,13 +284,15 @@ def type_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping) -> Cells:
         not_shown, unanswered, is_blank = _marker_masks(d, mapping)
         present_d, value_d, parsed_d = _numbers_distinct(d, is_blank)
         reason_d, valid_d, value_d, nr_d = judge(plan, present_d, value_d, parsed_d)
+        rows = len(d.index)
+        any_bad = bool((present_d & ~valid_d).any())
         return Cells(
             plan,
             d.per_cell(present_d, False),
             d.per_cell(valid_d, False),
-            d.per_cell(reason_d, OK),
+            d.per_cell(reason_d, OK) if any_bad else np.zeros(rows, dtype=np.int8),
             d.per_cell(value_d, np.nan),
-            d.per_cell(nr_d, False),
+            d.per_cell(nr_d, False) if nr_d.any() else None,
             not_shown=not_shown,
             unanswered=unanswered,
         )

@@ -10,6 +10,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pyarrow as pa
+import pyarrow.compute as pc
 
 from logiccheck.data import causes
 from logiccheck.data.dispositions import answered_share, default_dispositions, tally
@@ -240,9 +241,15 @@ class Validator:
     def _ids(self, table: pa.Table, offset: int) -> np.ndarray:
         col = self.layout.id_column
         if col is None:
-            return np.array([str(offset + i + 1) for i in range(table.num_rows)], dtype=object)
-        vals = table.column(col).to_pylist()
-        return np.array(["" if v is None else (str(int(v)) if isinstance(v, float) and v.is_integer() else str(v)) for v in vals], dtype=object)
+            return np.arange(offset + 1, offset + table.num_rows + 1).astype(str).astype(object)
+        arr = table.column(col)
+        if pa.types.is_floating(arr.type):
+            vals = arr.to_pylist()
+            return np.array(
+                ["" if v is None else (str(int(v)) if float(v).is_integer() else str(v)) for v in vals], dtype=object
+            )
+        text = pc.fill_null(pc.cast(arr, pa.string()), "")
+        return np.asarray(text.to_numpy(zero_copy_only=False), dtype=object)
 
     def _file_blocks(self) -> list[FindingBlock]:
         out = []
