@@ -155,7 +155,9 @@ class Validator:
                     cols_due.append(d)
                     cols_has.append(c.present)
                     cols_valid.append(c.valid)
-                blocks += self._item_blocks(item, c, d, state, table, offset, chunk_ids)
+                blocks += self._item_blocks(
+                    item, c, d, state, table, offset, chunk_ids, n_p > n_valid, n_d > n_on
+                )
             blocks += self._check_blocks(state, offset, chunk_ids)
             stop = np.array(["", *self.stop_names], dtype=object)[
                 np.searchsorted([-1, *self.stop_index], state.stop_at)
@@ -287,11 +289,14 @@ class Validator:
         table: pa.Table,
         offset: int,
         ids: np.ndarray,
+        any_invalid: bool = True,
+        any_missing: bool = True,
     ) -> list[FindingBlock]:
+        """Findings for one item in one chunk; the counts say which kinds can exist."""
         q, plan = self.q, c.plan
         out: list[FindingBlock] = []
-        bad = c.present & ~c.valid
-        if bad.any():
+        bad = c.present & ~c.valid if any_invalid else None
+        if bad is not None and bad.any():
             for reason in np.unique(c.reason[bad]).tolist():
                 rows = np.flatnonzero(bad & (c.reason == reason))
                 vals = cell_texts(table, plan, rows, self.mapping)
@@ -317,7 +322,7 @@ class Validator:
                 out.append(
                     FindingBlock(check, _sev(check), item, msg, rows + offset, ids[rows], [vals_all[i] for i in sel])
                 )
-        if plan.kind != "note" and not plan.missing:
+        if plan.kind != "note" and not plan.missing and any_missing:
             missing = due & ~c.present
             if missing.any():
                 rows = np.flatnonzero(missing)
