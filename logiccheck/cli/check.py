@@ -35,7 +35,7 @@ def check_command(
     frame: str | None,
     encoding: str | None,
     show: int,
-    chunk_rows: int,
+    chunk_rows: int | None,
     fmt: str,
     no_solver: bool,
     fail_on: str | None,

@@ -11,7 +11,6 @@ from rich.progress import BarColumn, Progress, SpinnerColumn, TextColumn, TimeEl
 
 from logiccheck.cli.common import color_option, fail, fail_on_option, make_console
 from logiccheck.data import DataMapping, DataReadError, MappingError, ValidationResult, load_mapping, validate
-from logiccheck.data.readers import DEFAULT_CHUNK_ROWS
 from logiccheck.diagnostics import Severity
 from logiccheck.load import Loaded, SpecReadError, load_file
 from logiccheck.quality.attach import attach_quality
@@ -33,7 +32,7 @@ def data_options(fn):  # type: ignore[no-untyped-def]
             click.option("--frame", "frame", type=click.Path(dir_okay=False), help="Sample frame CSV (column id, optionally email)."),
             click.option("--encoding", default=None, help="Text encoding of a CSV/TSV/JSON Lines export [default: UTF-8, with or without BOM]."),
             click.option("--show", default=5, show_default=True, type=click.IntRange(0), help="Findings shown per check in terminal output."),
-            click.option("--chunk-rows", default=DEFAULT_CHUNK_ROWS, hidden=True, type=click.IntRange(1)),
+            click.option("--chunk-rows", default=None, hidden=True, type=click.IntRange(1)),
         ]
     ):
         fn = option(fn)
@@ -76,7 +75,7 @@ def load_data_mapping(map_file: str | None, frame: str | None, spec: str | None 
 
 
 def run_validation(
-    loaded: Loaded, data: str, mapping: DataMapping, encoding: str | None, chunk_rows: int, color: str
+    loaded: Loaded, data: str, mapping: DataMapping, encoding: str | None, chunk_rows: int | None, color: str
 ) -> ValidationResult:
     """Validate with a progress bar on stderr once the run takes more than a moment."""
     err_console = make_console(color, stderr=True)
@@ -169,7 +168,7 @@ def validate_command(
     frame: str | None,
     encoding: str | None,
     show: int,
-    chunk_rows: int,
+    chunk_rows: int | None,
     fmt: str,
     out: str | None,
     fail_on: str | None,

@@ -45,6 +45,7 @@ def _options(q: Questionnaire, name: str) -> list[tuple[int, str]]:
 
 def fact(q: Questionnaire, how: str, name: str, key: float) -> str:
     """What a name held for a respondent, from its key (see evaluate.fact_key)."""
+    how = how.removeprefix("input:")
     if how == "answered":
         return f"`{name}` was answered" if key == 1.0 else f"`{name}` was not answered"
     if how == "asked":
@@ -91,8 +92,16 @@ def off_route_message(q: Questionnaire, item: str, g: Guard, keys: np.ndarray) -
         return f"`{item}` answered after stop `{g.entry.name}` fired (line {g.entry.span.line}); nothing after a stop is asked"
     if g.kind == "skip":
         return f"`{item}` answered but {guard_text(q, g)}; the skip passes over `{item}`"
-    facts = [fact(q, how, name, float(keys[j])) for j, (how, name) in enumerate(g.reads)]
-    said = " and ".join(facts) if facts else "the condition does not hold"
+    facts: list[str] = []
+    inputs: dict[int, list[str]] = {}  # fact index -> the inputs of that derived value
+    for j, (how, name) in enumerate(g.reads):
+        text = fact(q, how, name, float(keys[j]))
+        if how.startswith("input:") and facts:
+            inputs.setdefault(len(facts) - 1, []).append(text)
+        else:
+            facts.append(text)
+    parts = [f"{f} ({', '.join(inputs[i])})" if i in inputs else f for i, f in enumerate(facts)]
+    said = " and ".join(parts) if parts else "the condition does not hold"
     message = f"`{item}` answered but {said}; {guard_text(q, g)}"
     if g.kind == "own" and g.entry is not None and g.entry.index in q.broken:
         message += " (this condition has a spec problem; see `logiccheck lint`)"

@@ -302,21 +302,28 @@ class ChunkState:
     lets: dict[str, Any]
 
 
-def reads_of(q: Questionnaire, expr: Any) -> list[tuple[str, str]]:
-    """The facts a root-cause message states for a condition: names and how they are read."""
+def reads_of(q: Questionnaire, expr: Any, _depth: int = 0) -> list[tuple[str, str]]:
+    """The facts a root-cause message states for a condition: (how, name) pairs, `how`
+    being value / answered / asked; a derived value is followed by its own inputs, marked
+    `input:HOW`, so the message can say why it was false or unknown."""
     out: list[tuple[str, str]] = []
+
+    def add(item: tuple[str, str]) -> None:
+        if item not in out:
+            out.append(item)
+
     for node in n.walk(expr):
         if isinstance(node, n.Ref) and node.name in q.symbols:
-            item = ("value", node.name)
-        elif isinstance(node, n.Has) and isinstance(node.subject, n.Ref):
-            item = ("value", node.subject.name)
+            add(("value", node.name))
+            entry = q.symbols[node.name]
+            if entry.kind == "let" and entry.own is not None and _depth < 3:
+                for how, name in reads_of(q, entry.own, _depth + 1):
+                    add((how if how.startswith("input:") else f"input:{how}", name))
+        elif isinstance(node, n.Has) and isinstance(node.subject, n.Ref) and node.subject.name in q.symbols:
+            add(("value", node.subject.name))
         elif isinstance(node, n.Func):
-            item = (node.func, node.name)
-        else:
-            continue
-        if item not in out and (item[0] != "value" or item[1] in q.symbols):
-            out.append(item)
-    return [r for r in out if not (r[0] == "value" and any(o == ("value", r[1]) for o in out[: out.index(r)]))]
+            add((node.func, node.name))
+    return out
 
 
 class Evaluator:
@@ -466,6 +473,7 @@ class Evaluator:
 
     def fact_key(self, env: Env, how: str, name: str, rows: np.ndarray) -> np.ndarray:
         """A number standing for what a name held for these rows (see NOT_ASKED etc.)."""
+        how = how.removeprefix("input:")
         if how in ("answered", "asked"):
             got = getattr(env, how).get(name)
             return np.where(got[rows], 1.0, 0.0) if got is not None else np.zeros(len(rows))

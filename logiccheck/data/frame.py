@@ -138,69 +138,126 @@ class Cells:
     unanswered: np.ndarray | None = None
 
 
-def _markers(arr: pa.Array, values: list[str]) -> np.ndarray | None:
+@dataclass
+class Distinct:
+    """A text column as its distinct texts and, per cell, an index into them; index
+    `len(texts)` stands for a null (empty) cell. Judging a column then costs one step per
+    distinct text and one numpy take per cell."""
+
+    dictionary: pa.Array  # the distinct texts (string), as pyarrow holds them
+    index: np.ndarray
+    _texts: list[str] | None = None
+
+    @property
+    def texts(self) -> list[str]:
+        if self._texts is None:
+            self._texts = ["" if t is None else t for t in self.dictionary.to_pylist()]
+        return self._texts
+
+    def per_cell(self, per_text: np.ndarray, null: object) -> np.ndarray:
+        table = np.empty(len(self.dictionary) + 1, dtype=per_text.dtype)
+        table[:-1] = per_text
+        table[-1] = null
+        return table[self.index]
+
+
+def distinct(arr: pa.Array | pa.ChunkedArray) -> Distinct:
+    chunks = arr.chunks if isinstance(arr, pa.ChunkedArray) else [arr]
+    dictionaries: list[pa.Array] = []
+    parts: list[np.ndarray] = []
+    base = 0
+    for chunk in chunks:
+        if not pa.types.is_dictionary(chunk.type):
+            if not (pa.types.is_string(chunk.type) or pa.types.is_large_string(chunk.type)):
+                chunk = pc.cast(chunk, pa.string())
+            chunk = pc.dictionary_encode(chunk)
+        dictionary = chunk.dictionary
+        if not pa.types.is_string(dictionary.type):
+            dictionary = pc.cast(dictionary, pa.string())
+        dictionaries.append(dictionary)
+        indices = chunk.indices
+        idx = np.asarray((indices.fill_null(-1) if indices.null_count else indices).to_numpy(zero_copy_only=False))
+        parts.append(np.where(idx < 0, -1, idx + base) if base else idx)
+        base += len(dictionary)
+    if not parts:
+        return Distinct(pa.array([], pa.string()), np.zeros(0, dtype=np.int64))
+    index = np.concatenate(parts) if len(parts) > 1 else parts[0]
+    # -1 (a null cell) indexes the last slot of every per-text table, which `per_cell`
+    # reserves for nulls.
+    dictionary = pa.concat_arrays(dictionaries) if len(dictionaries) > 1 else dictionaries[0]
+    return Distinct(dictionary, index)
+
+
+def _is_text(arr: pa.Array | pa.ChunkedArray) -> bool:
+    t = arr.type
+    return pa.types.is_string(t) or pa.types.is_large_string(t) or pa.types.is_dictionary(t)
+
+
+def _in(trimmed: pa.Array, values: set[str]) -> np.ndarray:
     if not values:
-        return None
-    trimmed = pc.utf8_trim_whitespace(arr) if pa.types.is_string(arr.type) else pc.cast(arr, pa.string())
-    return np.asarray(pc.fill_null(pc.is_in(trimmed, value_set=pa.array(values, pa.string())), False))
+        return np.zeros(len(trimmed), dtype=bool)
+    return np.asarray(pc.fill_null(pc.is_in(trimmed, value_set=pa.array(sorted(values), pa.string())), False))
 
 
-def _blank_out(arr: pa.Array, markers: np.ndarray | None) -> pa.Array:
-    if markers is None or not markers.any():
-        return arr
-    return pc.if_else(pa.array(markers), pa.scalar(None, arr.type), arr)
+def _marker_masks(d: Distinct, mapping: DataMapping) -> tuple[np.ndarray | None, np.ndarray | None, np.ndarray]:
+    """(not_shown, unanswered, blank-per-text) for a column's distinct texts."""
+    trimmed = pc.utf8_trim_whitespace(d.dictionary)
+    ns = {m.strip() for m in mapping.not_shown}
+    un = {m.strip() for m in mapping.unanswered}
+    is_ns, is_un = _in(trimmed, ns), _in(trimmed, un)
+    is_blank = _in(trimmed, mapping.blank_markers()) | is_ns | is_un
+    not_shown = d.per_cell(is_ns, False) if ns else None
+    unanswered = d.per_cell(is_un, False) if un else None
+    return not_shown, unanswered, is_blank
 
 
-def parse_numbers(arr: pa.Array, blank: set[str]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+def _numbers_of(d: Distinct, is_blank: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Per cell (present, value, parsed) from the distinct texts."""
+    present, value, parsed = _numbers_distinct(d, is_blank)
+    return d.per_cell(present, False), d.per_cell(value, np.nan), d.per_cell(parsed, True)
+
+
+def _numbers_distinct(d: Distinct, is_blank: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Per distinct text (present, value, parsed): one pyarrow cast of the dictionary, and
+    a text-by-text look only when some text is not a number."""
+    k = len(d.dictionary)
+    try:
+        trimmed = pc.utf8_trim_whitespace(d.dictionary)
+        cleared = pc.if_else(pa.array(is_blank), pa.scalar(None, pa.string()), trimmed) if is_blank.any() else trimmed
+        value = np.asarray(pc.cast(cleared, pa.float64()).to_numpy(zero_copy_only=False), dtype=np.float64)
+        parsed = ~(np.isnan(value) & ~is_blank) & ~np.isinf(value)
+        if not parsed.all():
+            raise ValueError("some text is nan or inf")
+    except (pa.ArrowInvalid, ValueError):
+        value = np.full(k, np.nan)
+        parsed = np.ones(k, dtype=bool)
+        for i, text in enumerate(d.texts):
+            if is_blank[i]:
+                continue
+            try:
+                v = float(text.strip())
+            except ValueError:
+                parsed[i] = False
+                continue
+            if np.isnan(v) or np.isinf(v):
+                parsed[i] = False
+                continue
+            value[i] = v
+    value = np.where(parsed, value, np.nan)
+    return ~is_blank, value, parsed
+
+
+def parse_numbers(arr: pa.Array | pa.ChunkedArray, blank: set[str]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Cells → (present, value, parsed): `parsed` False where a present cell is no number."""
-    if isinstance(arr, pa.ChunkedArray):
-        arr = arr.combine_chunks()
-    if pa.types.is_integer(arr.type) or pa.types.is_floating(arr.type) or pa.types.is_boolean(arr.type):
+    if not _is_text(arr) and (pa.types.is_integer(arr.type) or pa.types.is_floating(arr.type) or pa.types.is_boolean(arr.type)):
+        if isinstance(arr, pa.ChunkedArray):
+            arr = arr.combine_chunks()
         value = np.asarray(pc.cast(arr, pa.float64()).to_numpy(zero_copy_only=False), dtype=np.float64)
         present = np.asarray(arr.is_valid()) & ~np.isnan(value)
         return present, value, np.ones(len(arr), dtype=bool)
-    if not pa.types.is_string(arr.type) and not pa.types.is_large_string(arr.type):
-        arr = pc.cast(arr, pa.string())
-    present = np.asarray(arr.is_valid())
-    try:
-        value = pc.cast(arr, pa.float64()).to_numpy(zero_copy_only=False)
-        value = np.asarray(value, dtype=np.float64)
-        parsed = ~np.isnan(value) | ~present
-        if len(blank) > 1 or not parsed.all():
-            raise pa.ArrowInvalid("take the careful path")
-        return present, value, parsed
-    except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
-        pass
-    # Careful path: parse each distinct text once.
-    enc = pc.dictionary_encode(arr)
-    texts = enc.dictionary.to_pylist()
-    d_value = np.full(len(texts) + 1, np.nan)
-    d_blank = np.zeros(len(texts) + 1, dtype=bool)
-    d_parsed = np.ones(len(texts) + 1, dtype=bool)
-    d_blank[-1] = True  # null
-    for i, text in enumerate(texts):
-        t = text.strip()
-        if t in blank:
-            d_blank[i] = True
-            continue
-        try:
-            v = float(t)
-        except ValueError:
-            d_parsed[i] = False
-            continue
-        if np.isnan(v) or np.isinf(v):
-            d_parsed[i] = False
-            continue
-        d_value[i] = v
-    idx = np.asarray(enc.indices.fill_null(len(texts)).to_numpy(zero_copy_only=False), dtype=np.int64)
-    return ~d_blank[idx], d_value[idx], d_parsed[idx]
-
-
-def _column(table: pa.Table, name: str) -> pa.Array:
-    col = table.column(name)
-    if isinstance(col, pa.ChunkedArray):
-        return col.chunk(0) if col.num_chunks == 1 else col.combine_chunks()
-    return col
+    d = distinct(arr)
+    is_blank = _in(pc.utf8_trim_whitespace(d.dictionary), blank)
+    return _numbers_of(d, is_blank)
 
 
 def type_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping) -> Cells:
@@ -214,19 +271,42 @@ def type_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping) -> Cells:
     if plan.missing:
         z = np.zeros(rows, dtype=bool)
         return Cells(plan, z, z.copy(), np.zeros(rows, dtype=np.int8), np.full(rows, np.nan), z.copy())
-    arr = _column(table, plan.columns[0])
-    not_shown = _markers(arr, mapping.not_shown)
-    unanswered = _markers(arr, mapping.unanswered)
-    arr = _blank_out(_blank_out(arr, not_shown), unanswered)
+    arr = table.column(plan.columns[0])
+    not_shown = unanswered = None
     if plan.kind == "text":
-        if not pa.types.is_string(arr.type):
-            arr = pc.cast(arr, pa.string())
-        trimmed = pc.utf8_trim_whitespace(arr)
-        is_blank = np.asarray(pc.fill_null(pc.is_in(trimmed, value_set=pa.array(sorted(blank))), True))
-        present = np.asarray(arr.is_valid()) & ~is_blank
+        d = distinct(arr)
+        not_shown, unanswered, is_blank = _marker_masks(d, mapping)
+        present = d.per_cell(~is_blank, False)
         return Cells(plan, present, present.copy(), np.zeros(rows, dtype=np.int8), not_shown=not_shown, unanswered=unanswered)
+    if _is_text(arr):
+        # Judge each distinct text once, then spread the verdicts over the cells.
+        d = distinct(arr)
+        not_shown, unanswered, is_blank = _marker_masks(d, mapping)
+        present_d, value_d, parsed_d = _numbers_distinct(d, is_blank)
+        reason_d, valid_d, value_d, nr_d = judge(plan, present_d, value_d, parsed_d)
+        rows = len(d.index)
+        any_bad = bool((present_d & ~valid_d).any())
+        return Cells(
+            plan,
+            d.per_cell(present_d, False),
+            d.per_cell(valid_d, False),
+            d.per_cell(reason_d, OK) if any_bad else np.zeros(rows, dtype=np.int8),
+            d.per_cell(value_d, np.nan),
+            d.per_cell(nr_d, False) if nr_d.any() else None,
+            not_shown=not_shown,
+            unanswered=unanswered,
+        )
     present, value, parsed = parse_numbers(arr, blank)
-    reason = np.zeros(rows, dtype=np.int8)
+    reason, valid, value, nr = judge(plan, present, value, parsed)
+    return Cells(plan, present, valid, reason, value, nr)
+
+
+def judge(
+    plan: NamePlan, present: np.ndarray, value: np.ndarray, parsed: np.ndarray
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """(reason, valid, value, nr) for a single, number or decimal item's cells (or for the
+    distinct texts of its column)."""
+    reason = np.zeros(len(present), dtype=np.int8)
     reason[present & ~parsed] = NOT_A_NUMBER
     num = present & parsed
     is_nr = num & np.isin(value, plan.nonresponse)
@@ -238,15 +318,21 @@ def type_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping) -> Cells:
             reason[num & ~is_nr & (np.floor(value) != value)] = NOT_INTEGER
         lo = -np.inf if plan.lo is None else plan.lo
         hi = np.inf if plan.hi is None else plan.hi
-        out = num & ~is_nr & ((value < lo) | (value > hi)) & (reason == OK)
+        with np.errstate(invalid="ignore"):
+            out = num & ~is_nr & ((value < lo) | (value > hi)) & (reason == OK)
         reason[out] = OUT_OF_RANGE
-    if plan.entry.kind == "item" and plan.entry.stmt.flags.strict and plan.entry.stmt.type.kind != "text":
+    if plan.entry.kind == "item" and plan.entry.stmt.flags.strict:
         # A non-response code on a strict item: name it as such rather than "not a code".
         strict_nr = num & (reason != OK) & np.isin(value, plan.global_nr)
         reason[strict_nr] = NONRESPONSE_STRICT
     valid = present & (reason == OK)
-    value = np.where(num, value, np.nan)
-    return Cells(plan, present, valid, reason, value, is_nr & valid, not_shown=not_shown, unanswered=unanswered)
+    return reason, valid, np.where(num, value, np.nan), is_nr & valid
+
+
+def _or(a: np.ndarray | None, b: np.ndarray | None) -> np.ndarray | None:
+    if a is None:
+        return b
+    return a if b is None else a | b
 
 
 def _multi_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping, blank: set[str]) -> Cells:
@@ -260,30 +346,25 @@ def _multi_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping, blank: s
         for j, col in enumerate(plan.columns):
             if col in plan.missing:
                 continue
-            arr = _column(table, col)
-            ns = _markers(arr, mapping.not_shown)
-            un = _markers(arr, mapping.unanswered)
-            if ns is not None:
-                not_shown = ns if not_shown is None else (not_shown | ns)
-            if un is not None:
-                unanswered = un if unanswered is None else (unanswered | un)
-            arr = _blank_out(_blank_out(arr, ns), un)
-            present, value, parsed = parse_numbers(arr, blank)
+            arr = table.column(col)
+            if _is_text(arr):
+                d = distinct(arr)
+                ns, un, is_blank = _marker_masks(d, mapping)
+                not_shown, unanswered = _or(not_shown, ns), _or(unanswered, un)
+                present, value, parsed = _numbers_of(d, is_blank)
+            else:
+                present, value, parsed = parse_numbers(arr, blank)
             chosen[:, j] = present & parsed & (value == 1)
             bad |= present & ~(parsed & ((value == 1) | (value == 0)))
     elif not plan.missing:
-        arr = _column(table, plan.columns[0])
-        not_shown = _markers(arr, mapping.not_shown)
-        unanswered = _markers(arr, mapping.unanswered)
-        arr = _blank_out(_blank_out(arr, not_shown), unanswered)
-        if not pa.types.is_string(arr.type):
-            arr = pc.cast(arr, pa.string())
-        enc = pc.dictionary_encode(arr)
-        texts = enc.dictionary.to_pylist()
+        d = distinct(table.column(plan.columns[0]))
+        not_shown, unanswered, is_blank = _marker_masks(d, mapping)
         position = {v: j for j, v in enumerate(plan.options)}
-        d_chosen = np.zeros((len(texts) + 1, k), dtype=bool)
-        d_bad = np.zeros(len(texts) + 1, dtype=bool)
-        for i, text in enumerate(texts):
+        d_chosen = np.zeros((len(d.texts) + 1, k), dtype=bool)
+        d_bad = np.zeros(len(d.texts) + 1, dtype=bool)
+        for i, text in enumerate(d.texts):
+            if is_blank[i]:
+                continue
             for token in text.split(mapping.multi.separator):
                 token = token.strip()
                 if token == "" or token in blank:
@@ -298,9 +379,8 @@ def _multi_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping, blank: s
                     d_bad[i] = True
                 else:
                     d_chosen[i, j] = True
-        idx = np.asarray(enc.indices.fill_null(len(texts)).to_numpy(zero_copy_only=False), dtype=np.int64)
-        chosen = d_chosen[idx]
-        bad = d_bad[idx]
+        chosen = d_chosen[d.index]
+        bad = d_bad[d.index]
     present = chosen.any(axis=1) | bad
     reason = np.where(bad, BAD_OPTION_CELL, OK).astype(np.int8)
     valid = present & ~bad
@@ -317,14 +397,14 @@ def cell_texts(table: pa.Table, plan: NamePlan, rows: np.ndarray, mapping: DataM
         for col, v in zip(plan.columns, plan.options, strict=False):
             if col in plan.missing:
                 continue
-            vals = _column(table, col).take(take).to_pylist()
+            vals = table.column(col).take(take).to_pylist()
             parts.append((col, v, vals))
         out = []
         for i in range(len(rows)):
             cells = [f"{col}={vals[i]}" for col, _, vals in parts if vals[i] not in (None, "", "0", 0)]
             out.append(", ".join(cells))
         return out
-    vals = _column(table, plan.columns[0]).take(take).to_pylist()
+    vals = table.column(plan.columns[0]).take(take).to_pylist()
     return ["" if v is None else str(v) for v in vals]
 
 

@@ -17,7 +17,14 @@ from pathlib import Path
 import pyarrow as pa
 import pyarrow.csv as pacsv
 
-DEFAULT_CHUNK_ROWS = 200_000
+DEFAULT_CHUNK_ROWS = None  # chosen from the number of columns: about CHUNK_CELLS cells a chunk
+CHUNK_CELLS = 12_000_000
+MAX_CHUNK_ROWS = 200_000
+
+
+def rows_for(columns: int) -> int:
+    """Rows per chunk so that a chunk holds about CHUNK_CELLS cells (memory stays flat)."""
+    return max(1_000, min(MAX_CHUNK_ROWS, CHUNK_CELLS // max(columns, 1)))
 # Files up to this size are read in one threaded pass and then sliced; larger ones are
 # streamed block by block, so an export larger than memory still validates.
 ONE_PASS_BYTES = 256_000_000
@@ -45,7 +52,7 @@ def open_export(
     path: str | Path,
     *,
     encoding: str | None = None,
-    chunk_rows: int = DEFAULT_CHUNK_ROWS,
+    chunk_rows: int | None = DEFAULT_CHUNK_ROWS,
     stream: bool | None = None,
 ) -> Export:
     """Open an export for chunked reading; the format follows the file name's suffix."""
@@ -122,16 +129,19 @@ def _header(path: Path, delimiter: str, encoding: str | None) -> list[str]:
 
 
 def _open_delimited(
-    path: Path, delimiter: str, encoding: str | None, chunk_rows: int, size: int, stream: bool | None
+    path: Path, delimiter: str, encoding: str | None, chunk_rows: int | None, size: int, stream: bool | None
 ) -> Export:
     names = _header(path, delimiter, encoding)
+    chunk_rows = chunk_rows or rows_for(len(names))
     read = pacsv.ReadOptions(
         encoding=encoding or "utf8",
         block_size=1 << 24,
     )
     parse = pacsv.ParseOptions(delimiter=delimiter, newlines_in_values=True)
     convert = pacsv.ConvertOptions(
-        column_types={c: pa.string() for c in names},
+        # Dictionary-encoded text: every cell is kept as written, and each column is
+        # judged once per distinct text rather than once per cell.
+        column_types={c: pa.dictionary(pa.int32(), pa.string()) for c in names},
         strings_can_be_null=True,
         quoted_strings_can_be_null=True,
         null_values=[""],
@@ -232,7 +242,7 @@ def _rows_to_table(names: list[str], rows: list[list[str | None]]) -> pa.Table:
     return pa.table({n: pa.array(list(c), type=pa.string()) for n, c in zip(names, cols, strict=False)})
 
 
-def _open_xlsx(path: Path, chunk_rows: int, size: int) -> Export:
+def _open_xlsx(path: Path, chunk_rows: int | None, size: int) -> Export:
     import openpyxl
 
     try:
@@ -248,6 +258,7 @@ def _open_xlsx(path: Path, chunk_rows: int, size: int) -> Export:
     if len(set(names)) != len(names):
         dup = next(n for n in names if names.count(n) > 1)
         raise DataReadError(f"{path}: column `{dup}` appears twice in the header; every column needs its own name")
+    chunk_rows = chunk_rows or rows_for(len(names))
 
     def chunks() -> Iterator[pa.Table]:
         batch: list[list[str | None]] = []
@@ -273,7 +284,7 @@ def _skip_empty_tail(chunks: Iterator[pa.Table]) -> Iterator[pa.Table]:
         first = False
 
 
-def _open_parquet(path: Path, chunk_rows: int, size: int) -> Export:
+def _open_parquet(path: Path, chunk_rows: int | None, size: int) -> Export:
     import pyarrow.parquet as pq
 
     try:
@@ -281,6 +292,7 @@ def _open_parquet(path: Path, chunk_rows: int, size: int) -> Export:
     except (pa.ArrowInvalid, OSError) as err:
         raise DataReadError(f"{path}: cannot read as Parquet ({err})") from None
     names = list(pfile.schema_arrow.names)
+    chunk_rows = chunk_rows or rows_for(len(names))
 
     def chunks() -> Iterator[pa.Table]:
         empty = True
@@ -293,7 +305,7 @@ def _open_parquet(path: Path, chunk_rows: int, size: int) -> Export:
     return Export(path, names, chunks(), size)
 
 
-def _open_jsonl(path: Path, encoding: str | None, chunk_rows: int, size: int) -> Export:
+def _open_jsonl(path: Path, encoding: str | None, chunk_rows: int | None, size: int) -> Export:
     enc = encoding or "utf-8-sig"
     names: list[str] = []
     try:
@@ -309,6 +321,7 @@ def _open_jsonl(path: Path, encoding: str | None, chunk_rows: int, size: int) ->
         raise _not_utf8(path, encoding) from None
     except json.JSONDecodeError as err:
         raise DataReadError(f"{path}: line 1 is not valid JSON ({err.msg})") from None
+    chunk_rows = chunk_rows or rows_for(len(names))
 
     def chunks() -> Iterator[pa.Table]:
         batch: list[list[str | None]] = []

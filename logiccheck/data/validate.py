@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import difflib
 import time
 from collections.abc import Callable, Iterable
 from pathlib import Path
@@ -9,6 +10,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pyarrow as pa
+import pyarrow.compute as pc
 
 from logiccheck.data import causes
 from logiccheck.data.dispositions import answered_share, default_dispositions, tally
@@ -25,7 +27,7 @@ from logiccheck.data.frame import (
     type_cells,
 )
 from logiccheck.data.mapping import DataMapping
-from logiccheck.data.readers import DEFAULT_CHUNK_ROWS, open_export, prefetch
+from logiccheck.data.readers import DEFAULT_CHUNK_ROWS, open_export, prefetch, rows_for
 from logiccheck.data.result import TABLE_COLUMNS, ValidationResult
 from logiccheck.diagnostics import Severity
 from logiccheck.model.questionnaire import Questionnaire
@@ -45,7 +47,7 @@ def validate(
     mapping: DataMapping | None = None,
     *,
     encoding: str | None = None,
-    chunk_rows: int = DEFAULT_CHUNK_ROWS,
+    chunk_rows: int | None = DEFAULT_CHUNK_ROWS,
     keep_cells: bool = True,
     stream: bool | None = None,
     progress: Progress | None = None,
@@ -64,6 +66,7 @@ def validate(
     else:
         table = source if isinstance(source, pa.Table) else _table_from_frame(source)
         header = list(table.column_names)
+        chunk_rows = chunk_rows or rows_for(len(header))
         chunks = (table.slice(s, chunk_rows) for s in range(0, max(table.num_rows, 1), chunk_rows))
         name = None
     return Validator(q, mapping, header, keep_cells=keep_cells).run(chunks, name, progress, timings)
@@ -152,7 +155,9 @@ class Validator:
                     cols_due.append(d)
                     cols_has.append(c.present)
                     cols_valid.append(c.valid)
-                blocks += self._item_blocks(item, c, d, state, table, offset, chunk_ids)
+                blocks += self._item_blocks(
+                    item, c, d, state, table, offset, chunk_ids, n_p > n_valid, n_d > n_on
+                )
             blocks += self._check_blocks(state, offset, chunk_ids)
             stop = np.array(["", *self.stop_names], dtype=object)[
                 np.searchsorted([-1, *self.stop_index], state.stop_at)
@@ -238,22 +243,40 @@ class Validator:
     def _ids(self, table: pa.Table, offset: int) -> np.ndarray:
         col = self.layout.id_column
         if col is None:
-            return np.array([str(offset + i + 1) for i in range(table.num_rows)], dtype=object)
-        vals = table.column(col).to_pylist()
-        return np.array(["" if v is None else (str(int(v)) if isinstance(v, float) and v.is_integer() else str(v)) for v in vals], dtype=object)
+            return np.arange(offset + 1, offset + table.num_rows + 1).astype(str).astype(object)
+        arr = table.column(col)
+        if pa.types.is_floating(arr.type):
+            vals = arr.to_pylist()
+            return np.array(
+                ["" if v is None else (str(int(v)) if float(v).is_integer() else str(v)) for v in vals], dtype=object
+            )
+        text = pc.fill_null(pc.cast(arr, pa.string()), "")
+        return np.asarray(text.to_numpy(zero_copy_only=False), dtype=object)
 
     def _file_blocks(self) -> list[FindingBlock]:
         out = []
         empty = np.array([], dtype=np.int64)
+        missing_cols = [col for _, col in self.layout.missing]
+        unknown = set(self.layout.unknown)
         for name, col in self.layout.missing:
             if name == "id":
                 msg = f"the export has no respondent id column `{col}`; rows are numbered instead (set `id` in the mapping)"
                 out.append(FindingBlock("missing-column", _sev("missing-column"), None, msg, empty))
+                continue
+            hint = ""
+            plan = self.layout.plans.get(name)
+            if plan is not None and plan.kind == "multi" and name in unknown and self.mapping.multi.layout == "columns":
+                hint = f" (the export has one column `{name}`: if it lists the chosen codes, set `layout = \"delimited\"` under [data.multi])"
             else:
-                msg = f"the export has no column `{col}` for `{name}`; every answer to it counts as missing"
-                out.append(FindingBlock("missing-column", _sev("missing-column"), name, msg, empty))
+                close = difflib.get_close_matches(col, self.layout.unknown, n=1, cutoff=0.75)
+                if close:
+                    hint = f" (is `{close[0]}` the same? map it under [data.columns]: {name} = \"{close[0]}\")"
+            msg = f"the export has no column `{col}` for `{name}`; every answer to it counts as missing{hint}"
+            out.append(FindingBlock("missing-column", _sev("missing-column"), name, msg, empty))
         for col in self.layout.unknown:
-            msg = f"column `{col}` is not in the spec (no item, grid row or sample variable of that name); it is ignored"
+            close = difflib.get_close_matches(col, missing_cols, n=1, cutoff=0.75)
+            hint = f"; did you mean `{close[0]}`?" if close else ""
+            msg = f"column `{col}` is not in the spec (no item, grid row or sample variable of that name); it is ignored{hint}"
             out.append(FindingBlock("unknown-column", _sev("unknown-column"), None, msg, empty))
         return out
 
@@ -266,11 +289,14 @@ class Validator:
         table: pa.Table,
         offset: int,
         ids: np.ndarray,
+        any_invalid: bool = True,
+        any_missing: bool = True,
     ) -> list[FindingBlock]:
+        """Findings for one item in one chunk; the counts say which kinds can exist."""
         q, plan = self.q, c.plan
         out: list[FindingBlock] = []
-        bad = c.present & ~c.valid
-        if bad.any():
+        bad = c.present & ~c.valid if any_invalid else None
+        if bad is not None and bad.any():
             for reason in np.unique(c.reason[bad]).tolist():
                 rows = np.flatnonzero(bad & (c.reason == reason))
                 vals = cell_texts(table, plan, rows, self.mapping)
@@ -296,7 +322,7 @@ class Validator:
                 out.append(
                     FindingBlock(check, _sev(check), item, msg, rows + offset, ids[rows], [vals_all[i] for i in sel])
                 )
-        if plan.kind != "note" and not plan.missing:
+        if plan.kind != "note" and not plan.missing and any_missing:
             missing = due & ~c.present
             if missing.any():
                 rows = np.flatnonzero(missing)
@@ -318,7 +344,9 @@ class Validator:
         return out
 
     def _allowed(self, plan: NamePlan) -> str:
-        nr = "" if plan.nonresponse is None or not plan.nonresponse.size else " or a non-response code"
+        nr = ""
+        if plan.nonresponse is not None and plan.nonresponse.size:
+            nr = " or a non-response code (" + ", ".join(f"{int(v)}" for v in plan.nonresponse) + ")"
         if plan.kind == "multi":
             return "; option cells hold 1 (chosen), 0 (not chosen) or blank"
         if plan.allowed is not None:

@@ -13,7 +13,7 @@ import pyarrow.csv as pacsv
 
 from logiccheck.data.result import TABLE_COLUMNS, ValidationResult
 
-ARROW_BLOCK = 1000  # blocks at least this large are written by pyarrow
+ARROW_BLOCK = 64  # blocks at least this large are written by pyarrow
 FINDING_COLUMNS = ["check", "severity", "respondent", "row", "item", "value", "message"]
 
 

@@ -64,12 +64,16 @@ def render_validation(console: Console, result: ValidationResult, *, show: int =
             f"[{STYLE[sev]}]{sev}[/{STYLE[sev]}] [magenta]{check}[/magenta]: {count} finding{'s' if count != 1 else ''}",
             highlight=False,
         )
-        # The first `show` findings by row, taken from each block's head only.
-        heads = []
-        for block in result.blocks:
-            if block.check == check and block.severity.value == sev:
-                heads.extend(block.head(show))
-        heads.sort(key=lambda f: (f.row is not None, f.row or 0))
+        # The first `show` findings by row, from block heads only, stopping at the first
+        # block that starts after the rows already taken.
+        mine = [b for b in result.blocks if b.check == check and b.severity.value == sev]
+        mine.sort(key=lambda b: int(b.rows[0]) if b.rows.size else -1)
+        heads: list = []
+        for block in mine if show else []:
+            if len(heads) >= show and block.rows.size and int(block.rows[0]) + 1 > (heads[show - 1].row or 0):
+                break
+            heads.extend(block.head(show))
+            heads.sort(key=lambda f: (f.row is not None, f.row or 0))
         shown = 0
         for f in heads[:show]:
             where = f"row {f.row}, id {f.respondent}" if f.row is not None else "file"

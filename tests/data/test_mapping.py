@@ -137,3 +137,12 @@ def test_missing_and_unknown_columns() -> None:
     assert DataMapping.model_validate({"ignore": ["shoe_size"]}) is not None
     quiet = validate(_q(), frame, DataMapping.model_validate({"ignore": ["shoe_size"]}))
     assert not [f for f in quiet.findings if f.check == "unknown-column"]
+
+
+def test_missing_and_unknown_columns_suggest_the_fix() -> None:
+    renamed = pd.DataFrame({"id": ["r1"], "own": ["1"], "kinds": ["1;2"], "dog_walk": ["3"]})
+    result = validate(_q(), renamed)
+    messages = [f.message for f in result.findings]
+    assert any("`kinds_1`" in m and 'layout = "delimited"' in m for m in messages)
+    assert any("no column `dog_walks`" in m and 'dog_walks = "dog_walk"' in m for m in messages)
+    assert any("column `dog_walk` is not in the spec" in m and "did you mean `dog_walks`?" in m for m in messages)

@@ -110,3 +110,18 @@ def test_bikeshare_demo_agrees_with_both_oracles() -> None:
     states = interpret_csv(q, str(data))
     for j, item in enumerate(result.items):
         assert [s.due[item] for s in states] == result.due[:, j].tolist(), item
+
+
+@settings(max_examples=20, deadline=None)
+@given(spec_seed=st.integers(0, 10_000), data_seed=st.integers(0, 10_000), rows=st.integers(1, 80))
+def test_simulate_without_faults_follows_the_routing(spec_seed: int, data_seed: int, rows: int) -> None:
+    text = make_spec(spec_seed, size=random.Random(spec_seed).randint(3, 8))
+    q = load_text(text, "prop.qlc").questionnaire
+    sim = simulate(q, rows, seed=data_seed)
+    result = validate(q, sim.table)
+    assert sim.faults == []
+    table = result.table
+    assert (table["out_of_path"] == 0).all() and (table["invalid"] == 0).all()
+    assert not (table["answered"] > table["expected"]).any()
+    # Edit rules drawn at random may fail on random answers; nothing else is an error.
+    assert not [f for f in result.findings if f.severity.value == "error" and f.check != "check-failed"]

@@ -105,3 +105,23 @@ d: single yesno "D?"
     assert m["disposition"].tolist() == ["complete", "partial", "break-off", "minor", "break-off"]
     assert result.dispositions == {"complete": 1, "partial": 1, "break-off": 2, "minor": 1}
     assert m.loc["p1", "duration"] == 300 and m["duration"].isna().tolist() == [False, True, True, False, True]
+
+
+def test_root_cause_names_the_inputs_of_a_derived_value() -> None:
+    spec = """survey why "Why"
+
+codes freq
+  daily  = 1 "Daily"
+  weekly = 2 "Weekly"
+
+often: single freq "How often?"
+count_n: number 0..100 "How many?" strict
+let heavy = (often = daily or count_n >= 50)
+detail: text "Tell us more." when heavy
+"""
+    frame = pd.DataFrame({"id": ["x"], "often": ["2"], "count_n": ["7"], "detail": ["lots"]})
+    result = validate(load_text(spec, "why.qlc").questionnaire, frame)
+    (finding,) = [f for f in result.findings if f.check == "out-of-path"]
+    assert finding.message == (
+        "`detail` answered but `heavy` is false (`often` = weekly, `count_n` = 7); asked only when `heavy`, line 10"
+    )
