@@ -51,7 +51,6 @@ def _reads_of(q: Questionnaire, entry: Entry) -> list[Read]:
         if reads is None:
             reads = context_cache[id(owner)] = [Read(name, span, "context", owner) for name, span in _names(expr)]
         out.extend(reads)
-    stmt = entry.stmt
     if entry.kind == "let":
         out.extend(Read(name, span, "let") for name, span in _names(entry.own))
     elif entry.kind == "check":
@@ -59,12 +58,7 @@ def _reads_of(q: Questionnaire, entry: Entry) -> list[Read]:
         out.extend(Read(name, span, "check") for name, span in _names(entry.require))
     else:
         out.extend(Read(name, span, "condition") for name, span in _names(entry.own))
-    texts = []
-    if isinstance(stmt, (n.Item, n.Stop)):
-        texts.append((stmt.text, stmt.text_span))
-    if entry.grid is not None and entry.grid.rows and entry.grid.rows[0] is stmt:
-        texts.append((entry.grid.text, entry.grid.text_span))
-    for text, span in texts:
+    for text, span in entry.texts():
         out.extend(Read(name, pspan, "pipe") for name, pspan in pipes_in(text, span))
     return [r for r in out if r.name in q.symbols]
 

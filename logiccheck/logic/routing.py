@@ -220,7 +220,7 @@ class RoutingAnalysis:
             shown = self._shown(entry)
             if shown is None:
                 continue
-            for text, span in self._texts(entry):
+            for text, span in entry.texts():
                 for name, pspan in pipes_in(text, span):
                     missing = self._missing(name, entry.index)
                     if missing is None:
@@ -338,15 +338,6 @@ class RoutingAnalysis:
         if entry.kind == "stop":
             return self.enc.fires(entry)
         return None
-
-    def _texts(self, entry: Entry) -> list[tuple[str, Span]]:
-        stmt = entry.stmt
-        out = []
-        if isinstance(stmt, (n.Item, n.Stop)):
-            out.append((stmt.text, stmt.text_span))
-        if entry.grid is not None and entry.grid.rows and entry.grid.rows[0] is stmt:
-            out.append((entry.grid.text, entry.grid.text_span))
-        return out
 
     def _missing(self, name: str, at: int) -> z3.BoolRef | None:
         """The piped value has none (None: not something the encoding reads)."""

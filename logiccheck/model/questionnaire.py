@@ -45,6 +45,16 @@ class Entry:
     def span(self) -> Span:
         return getattr(self.stmt, "name_span", None) or self.stmt.span
 
+    def texts(self) -> list[tuple[str, Span]]:
+        """The quoted texts shown with this statement (a grid's stem goes with its first
+        row), which may pipe values with `{name}`."""
+        out = []
+        if self.kind in ("item", "stop"):
+            out.append((self.stmt.text, self.stmt.text_span))
+        if self.grid is not None and self.grid.rows and self.grid.rows[0] is self.stmt:
+            out.append((self.grid.text, self.grid.text_span))
+        return out
+
     def conditions(self) -> list[Any]:
         """Every condition that must be true for this statement to be reached."""
         out = [expr for _, expr in self.context if expr is not None]

@@ -178,20 +178,11 @@ class Resolver:
                 entry.own = self.boolean(stmt.when, entry, "check")
             if stmt.require is not None:
                 entry.require = self.boolean(stmt.require, entry, "check")
-        for text, span in self.texts(entry):
+        for text, span in entry.texts():
             for name, pspan in pipes_in(text, span):
                 self.q.references.append(Reference(entry.index, name, pspan, "pipe"))
                 if name not in self.q.symbols:
                     self.unknown(name, pspan, entry)
-
-    def texts(self, entry: Entry) -> list[tuple[str, Span]]:
-        stmt = entry.stmt
-        out = []
-        if isinstance(stmt, (n.Item, n.Stop)):
-            out.append((stmt.text, stmt.text_span))
-        if entry.grid is not None and entry.grid.rows and entry.grid.rows[0] is stmt:
-            out.append((entry.grid.text, entry.grid.text_span))
-        return out
 
     def boolean(self, expr: Any, entry: Entry, role: str) -> Any:
         kind = self.kind_of_expr(expr, entry, role)
