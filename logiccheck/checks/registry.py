@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import dataclasses
 import importlib
 from collections.abc import Callable, Iterable
 from dataclasses import dataclass
@@ -57,9 +58,10 @@ def register(
     good: str,
 ) -> Callable[[Runner], Runner]:
     """Decorator: declare a check once, with its docs, beside its code."""
+    info = CheckInfo(name, Severity(severity), stage, summary, what, why, bad, good)
 
     def wrap(fn: Runner) -> Runner:
-        _add(CheckInfo(name, Severity(severity), stage, summary, what, why, bad, good, fn))
+        _add(dataclasses.replace(info, run=fn))
         return fn
 
     return wrap
