@@ -96,3 +96,39 @@ def test_rule_logic_matches_sql_null_logic() -> None:
             "case when isnan(due_count) then null else due_count end as due_count from m) order by i"
         ).fetchall()
         np.testing.assert_array_equal(ours, np.array([r[0] for r in got]), err_msg=text)
+
+
+def test_command_path_validates_once(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    from logiccheck.cli import validate as cli_validate
+    from logiccheck.data.mapping import DataMapping
+    from logiccheck.quality import attach
+
+    calls: list[bool] = []
+    real = cli_validate.validate
+
+    def counted(*args, **kwargs):  # type: ignore[no-untyped-def]
+        calls.append(kwargs.get("keep_cells", True))
+        return real(*args, **kwargs)
+
+    def second_pass(*args, **kwargs):  # type: ignore[no-untyped-def]
+        raise AssertionError("the quality checks validated the export a second time")
+
+    monkeypatch.setattr(cli_validate, "validate", counted)
+    monkeypatch.setattr(attach, "validate", second_pass)
+    loaded = load_file(SPECS / "bikeshare.qlc")
+    result = cli_validate.run_validation(loaded, str(SPECS / "bikeshare_export.csv"), DataMapping(), None, 1000, "never")
+    assert calls == [True]
+    # The quality findings are there too (the demo export has a near-copy).
+    assert "near-duplicate" in {f.check for f in result.findings}
+
+
+def test_api_drops_the_cells_unless_asked() -> None:
+    import logiccheck
+
+    survey = logiccheck.load(SPECS / "bikeshare.qlc")
+    export = SPECS / "bikeshare_export.csv"
+    plain = survey.validate(export)
+    kept = survey.validate(export, keep_cells=True)
+    assert plain.raw.due is None and plain.raw.frame is None
+    assert kept.raw.due is not None and kept.raw.due.shape == (kept.raw.respondents, len(kept.raw.items))
+    assert [(f.check, f.row) for f in plain.raw.findings] == [(f.check, f.row) for f in kept.raw.findings]
