@@ -144,6 +144,19 @@ def measure(mode: str, path: Path, spec: Path) -> dict[str, float]:
     return json.loads(res.stdout.strip().splitlines()[-1])
 
 
+def prepare(cache: Path, rows: int) -> tuple[Path, Path]:
+    """The spec and the export of `rows` respondents in `cache` (made once, then reused)."""
+    cache.mkdir(parents=True, exist_ok=True)
+    spec = cache / "bench.qlc"
+    spec.write_text(make_spec(), encoding="utf-8")
+    data = cache / f"export_{rows}.csv"
+    if not data.exists():
+        t = time.perf_counter()
+        generate(data, rows)
+        print(f"generated {data} in {time.perf_counter() - t:.1f} s")
+    return spec, data
+
+
 def main() -> None:
     parser = argparse.ArgumentParser()
     parser.add_argument("--rows", type=int, default=100_000)
@@ -155,14 +168,7 @@ def main() -> None:
         child(*args.child)
         return
     cache = Path(args.cache)
-    cache.mkdir(parents=True, exist_ok=True)
-    spec = cache / "bench.qlc"
-    spec.write_text(make_spec(), encoding="utf-8")
-    data = cache / f"export_{args.rows}.csv"
-    if not data.exists():
-        t = time.perf_counter()
-        generate(data, args.rows)
-        print(f"generated {data} in {time.perf_counter() - t:.1f} s")
+    spec, data = prepare(cache, args.rows)
     size = data.stat().st_size / 1e6
     print(f"export: {args.rows:,} respondents × {3 * GATES} items, {size:,.0f} MB ({data})")
 

@@ -16,7 +16,7 @@ from logiccheck.data.mapping import DataMapping
 from logiccheck.data.readers import DataReadError
 from logiccheck.data.validate import validate
 from logiccheck.model.questionnaire import Questionnaire
-from logiccheck.quality.bridge import state_from_validation
+from logiccheck.quality.bridge import require_id, state_from_validation
 from logiccheck.quality.config import SOURCES, QualityConfig
 from logiccheck.quality.rates import OutcomeCounts, dispositions_to_counts, outcome_rates
 from logiccheck.quality.repair import Repairer
@@ -49,16 +49,23 @@ def _repair_hints(q: Questionnaire, frame: pd.DataFrame, result: QualityResult, 
     return hints
 
 
-def _mapped_quality(
-    q: Questionnaire, export: Path, mapping: DataMapping, config: QualityConfig, sf: pd.DataFrame | None
+def _quality(
+    q: Questionnaire, export: Path, mapping: DataMapping | None, config: QualityConfig, sf: pd.DataFrame | None,
+    raw: pd.DataFrame,
 ) -> tuple[QualityResult, set[str], pd.DataFrame]:
-    """Route state and quality findings through the data stage's reader and mapping; the
-    state's columns are the export's own names. Also returns the typed frame (spec names)."""
+    """Route state from the data stage's reader and evaluator (one pass, cells kept), then
+    the quality findings. `mapping` None: the default layout, and the quality checks read
+    the export as it is; with a mapping, the state's columns are the export's own names
+    and the checks read the typed frame (spec names). Also returns the frame they read."""
+    if mapping is None:
+        require_id(raw, "id")
     try:
-        full = validate(q, export, mapping)
+        full = validate(q, export, mapping or DataMapping(), keep_cells=True)
     except DataReadError as err:
         raise ExportError(str(err)) from None
     state = state_from_validation(q, full)
+    if mapping is None:
+        return run_quality(q, raw, config, sf, id_column="id", state=state), {""}, raw
     for name in state.items:
         entry = q.symbols[name]
         if entry.stmt.type.kind == "multi" and mapping.multi.layout == "columns":
@@ -67,7 +74,6 @@ def _mapped_quality(
         elif entry.stmt.type.kind != "note":
             state.columns[name] = [mapping.column_of(name)]
     typed = full.frame.reset_index(drop=True).copy() if full.frame is not None else pd.DataFrame({"id": state.ids})
-    raw = read_export(export)
     for c in (config.speed.duration_column, config.frame.email_column):
         if c in raw.columns and c not in typed.columns:
             typed[c] = raw[c].to_numpy()
@@ -85,20 +91,17 @@ def clean_export(
     sample_outcomes: OutcomeCounts | None = None,
     mapping: DataMapping | None = None,
 ) -> CleanRun:
-    """`mapping` None: the default layout (DESIGN §6). With a mapping, the data stage's
-    reader and evaluator give the route state, and cells holding a blank, not-shown or
+    """`mapping` None: the default layout (DESIGN §6). The data stage's reader and
+    evaluator give the route state; with a mapping, cells holding a blank, not-shown or
     not-answered marker are left as they are."""
     policy = policy or CleanPolicy()
     config = config or QualityConfig()
     fmt = export_format(export)
     frame = read_export(export)
     sf = read_export(sample_frame) if sample_frame is not None else None
-    if mapping is None:
-        result, markers, by_name = run_quality(q, frame, config, sf), {""}, frame
-    else:
-        if config.speed.duration_column == "duration":
-            config = config.model_copy(update={"speed": config.speed.model_copy(update={"duration_column": mapping.duration})})
-        result, markers, by_name = _mapped_quality(q, export, mapping, config, sf)
+    if mapping is not None and config.speed.duration_column == "duration":
+        config = config.model_copy(update={"speed": config.speed.model_copy(update={"duration_column": mapping.duration})})
+    result, markers, by_name = _quality(q, export, mapping, config, sf, frame)
     if policy.keep_dispositions is not None:
         known = {"complete", "partial", "break-off", *(e.name for e in q.entries if e.kind == "stop")}
         unknown = [d for d in policy.keep_dispositions if d not in known]

@@ -102,8 +102,9 @@ def run_validation(
         bar.update(state["task"], completed=rows)  # type: ignore[attr-defined]
 
     try:
+        # The quality checks read the cells: keep them, so the export is validated once.
         result = validate(
-            loaded.questionnaire, data, mapping, encoding=encoding, chunk_rows=chunk_rows, keep_cells=False, progress=progress
+            loaded.questionnaire, data, mapping, encoding=encoding, chunk_rows=chunk_rows, keep_cells=True, progress=progress
         )
         return attach_quality(loaded.questionnaire, result, data, mapping, _configured_quality(loaded), encoding=encoding)
     except DataReadError as err:

@@ -9,7 +9,7 @@ anything later (an answer off the route, or an invalid one, opens nothing).
 from __future__ import annotations
 
 import math
-from collections.abc import Callable
+from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -270,6 +270,51 @@ class Compiler:
             join = kleene_and if isinstance(expr, n.And) else kleene_or
             return lambda env: join([p(env) for p in parts])
         return lambda env: env.unknown()
+
+
+class ColumnCompiler(Compiler):
+    """A compiler that also reads names outside the questionnaire (numbers and flags
+    given per respondent, e.g. completeness measures); they shadow spec names."""
+
+    def __init__(self, q: Questionnaire, numbers: Iterable[str] = (), flags: Iterable[str] = ()) -> None:
+        super().__init__(q)
+        self.numbers = set(numbers)
+        self.flags = set(flags)
+
+    def compile(self, expr: Any) -> Compiled:
+        if isinstance(expr, n.Ref) and expr.name in self.flags:
+            name = expr.name
+            return lambda env: env.bools.get(name) or env.unknown()
+        if isinstance(expr, n.Ref) and expr.name in self.numbers:
+            name = expr.name
+            return lambda env: env.values.get(name) or env.nan()
+        return super().compile(expr)
+
+
+def evaluate_columns(
+    q: Questionnaire,
+    expr: Any,
+    rows: int,
+    *,
+    numbers: Mapping[str, np.ndarray] | None = None,
+    flags: Mapping[str, np.ndarray] | None = None,
+    answered: Mapping[str, np.ndarray] | None = None,
+    asked: Mapping[str, np.ndarray] | None = None,
+) -> TV:
+    """One condition over given per-respondent arrays, with the routing's three-valued
+    semantics: `numbers` (NaN = no value), `flags` (known true/false), and the
+    `answered(...)` / `asked(...)` masks of items."""
+    numbers, flags = numbers or {}, flags or {}
+    env = Env(rows)
+    for name, v in numbers.items():
+        a = np.asarray(v, dtype=np.float64)
+        env.values[name] = NumV(a, a)
+    for name, m in flags.items():
+        b = np.asarray(m, dtype=bool)
+        env.bools[name] = TV(b, ~b)
+    env.answered.update(answered or {})
+    env.asked.update(asked or {})
+    return ColumnCompiler(q, numbers, flags).boolean(expr)(env)
 
 
 @dataclass

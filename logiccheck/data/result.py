@@ -19,7 +19,7 @@ class ValidationResult:
     """Everything validation learned about one export.
 
     `due`, `has_value` and `valid` are respondents × `items` Boolean arrays (None when
-    validation ran with `keep_cells=False`, as the command line does); `has_value` is the
+    validation ran with `keep_cells=False`); `has_value` is the
     export's own (answered, valid or not); `due` is the routing's, with cascade.
     """
 

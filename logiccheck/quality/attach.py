@@ -41,8 +41,8 @@ def attach_quality(
     config: QualityConfig | None = None,
     encoding: str | None = None,
 ) -> ValidationResult:
-    """Add the quality findings to `result` (in place; also returned). Validates once more
-    with the cells kept when `result` was made without them."""
+    """Add the quality findings to `result` (in place; also returned). Validate with
+    `keep_cells=True` first: a result without cells costs a second validation pass."""
     mapping = mapping or DataMapping()
     config = config or QualityConfig()
     if config.speed.duration_column == "duration" and mapping.duration != "duration":

@@ -4,12 +4,15 @@ and quality findings as data-stage `Finding` records (one list for every reporte
 from __future__ import annotations
 
 import numpy as np
+import pandas as pd
 
 from logiccheck.data.findings import Finding as DataFinding
+from logiccheck.data.mapping import DataMapping
 from logiccheck.data.result import ValidationResult
+from logiccheck.data.validate import validate
 from logiccheck.model.questionnaire import Questionnaire
 from logiccheck.quality.findings import Finding
-from logiccheck.quality.route import RouteState, item_columns
+from logiccheck.quality.route import RouteError, RouteState, item_columns
 
 
 def state_from_validation(q: Questionnaire, result: ValidationResult) -> RouteState:
@@ -26,12 +29,25 @@ def state_from_validation(q: Questionnaire, result: ValidationResult) -> RouteSt
             nonresponse[:, j] = result.valid[:, j] & np.isin(values, nr_codes)
     stops = {e.name: np.asarray(result.stop == e.name) for e in q.entries if e.kind == "stop"}
     failed = {e.name: np.zeros(n, bool) for e in q.entries if e.kind == "check"}
-    for f in result.findings:
-        if f.check == "check-failed" and f.item in failed and f.row is not None:
-            failed[f.item][f.row - 1] = True
+    # From the finding blocks (0-based rows): no need to materialise every finding.
+    for b in result.blocks:
+        if b.check == "check-failed" and b.item in failed and b.rows.size:
+            failed[b.item][b.rows] = True
     columns = {name: item_columns(q, q.symbols[name]) for name in result.items}
     return RouteState([str(i) for i in result.ids], list(result.items), result.due, result.has_value, result.valid,
                       nonresponse, stops, failed, columns)
+
+
+def require_id(frame: pd.DataFrame, id_column: str) -> None:
+    if id_column not in frame.columns:
+        raise RouteError(f"the export has no respondent id column {id_column!r}; add it or map another column")
+
+
+def route_state(q: Questionnaire, frame: pd.DataFrame, id_column: str = "id") -> RouteState:
+    """Due, answered, valid and non-response masks for every respondent × item of an
+    export in the default layout (DESIGN §6), by the data stage's evaluator."""
+    require_id(frame, id_column)
+    return state_from_validation(q, validate(q, frame, DataMapping(id=id_column), keep_cells=True))
 
 
 def as_data_findings(findings: list[Finding]) -> list[DataFinding]:

@@ -15,11 +15,12 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from logiccheck.data.evaluate import evaluate_columns
 from logiccheck.model import nodes as n
 from logiccheck.model.build import build_spec
 from logiccheck.model.questionnaire import Questionnaire
 from logiccheck.quality.config import CompletenessConfig
-from logiccheck.quality.route import Num, RouteState, Tri, _Evaluator
+from logiccheck.quality.route import RouteState
 from logiccheck.syntax import parse_text
 
 MEASURES = ("answered_share", "answered_count", "due_count", "weighted_share", "gates_answered", "gates_due")
@@ -116,20 +117,19 @@ def reached_mask(state: RouteState, item: str) -> np.ndarray:
 
 
 def eval_rule(rule: Rule, q: Questionnaire, state: RouteState, table: pd.DataFrame, config: CompletenessConfig) -> np.ndarray:
-    """True where the rule holds (unknown counts as not holding)."""
-    frame = pd.DataFrame({"id": state.ids})
-    ev = _Evaluator(q, frame)
-    zero = np.zeros(len(frame), bool)
-    for name in MEASURES:
-        ev.values[name] = Num(table[name].to_numpy(dtype=float), zero)
-    for r in rule.reached:
-        mask = reached_mask(state, r)
-        ev.values[f"reached__{r}"] = Tri(mask, ~mask)
+    """True where the rule holds (unknown counts as not holding), by the data stage's
+    condition compiler over the measures."""
     answered = answered_matrix(state, config)
-    for j, name in enumerate(state.items):
-        ev.due[name] = state.due[:, j]
-        ev.values[name] = Num(np.where(answered[:, j], 1.0, np.nan), zero)
-    return ev.cond(rule.expr).t
+    holds = evaluate_columns(
+        q,
+        rule.expr,
+        len(state.ids),
+        numbers={name: table[name].to_numpy(dtype=float) for name in MEASURES},
+        flags={f"reached__{r}": reached_mask(state, r) for r in rule.reached},
+        answered={name: answered[:, j] for j, name in enumerate(state.items)},
+        asked={name: state.due[:, j] for j, name in enumerate(state.items)},
+    )
+    return holds.t
 
 
 def dispositions(q: Questionnaire, state: RouteState, config: CompletenessConfig) -> pd.Series:

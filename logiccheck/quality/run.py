@@ -9,9 +9,10 @@ import pandas as pd
 
 from logiccheck.model.questionnaire import Questionnaire
 from logiccheck.quality import careless, completeness, duplicates
+from logiccheck.quality.bridge import route_state
 from logiccheck.quality.config import QualityConfig
 from logiccheck.quality.findings import Finding
-from logiccheck.quality.route import RouteState, route_state
+from logiccheck.quality.route import RouteState
 
 # Item kinds whose answers are compared for duplicates (free text is not).
 _COMPARED = ("single", "multi", "number", "decimal")

@@ -7,9 +7,9 @@ import pandas as pd
 import pytest
 
 from logiccheck.load import load_text
+from logiccheck.quality.bridge import route_state
 from logiccheck.quality.completeness import RuleError, dispositions, measures, parse_rule
 from logiccheck.quality.config import CompletenessConfig
-from logiccheck.quality.route import route_state
 
 SPEC = """survey t "t"
 codes yn

@@ -1,0 +1,134 @@
+"""The quality stage's route state comes from the data stage: check failures and
+findings agree with the validation result, and completeness rules keep SQL's NULL logic."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import duckdb
+import numpy as np
+import pandas as pd
+import pytest
+
+from logiccheck.clean.io import read_export
+from logiccheck.data import validate
+from logiccheck.data.evaluate import evaluate_columns
+from logiccheck.load import load_file, load_text
+from logiccheck.quality.bridge import as_data_findings, route_state, state_from_validation
+from logiccheck.quality.completeness import parse_rule
+from logiccheck.quality.route import RouteError
+from logiccheck.quality.run import run_quality
+from tests.conftest import SPECS
+from tests.quality.planted import SPEC, build
+
+
+def cases(tmp: Path) -> list[tuple[object, Path]]:
+    export, _, _ = build()
+    path = tmp / "planted.csv"
+    export.to_csv(path, index=False)
+    return [
+        (load_text(SPEC, "libvisit.qlc").questionnaire, path),
+        (load_file(SPECS / "bikeshare.qlc").questionnaire, SPECS / "bikeshare_export.csv"),
+    ]
+
+
+@pytest.mark.parametrize("case", [0, 1])
+def test_state_carries_the_validation(tmp_path: Path, case: int) -> None:
+    q, path = cases(tmp_path)[case]
+    result = validate(q, path, keep_cells=True)
+    state = state_from_validation(q, result)
+    assert state.items == result.items and state.ids == list(result.ids)
+    np.testing.assert_array_equal(state.due, result.due)
+    failed = {(f.respondent, f.item) for f in result.findings if f.check == "check-failed"}
+    mine = {(state.ids[r], name) for name, m in state.checks_failed.items() for r in np.flatnonzero(m)}
+    assert mine == failed
+    stopped = {(state.ids[r], name) for name, m in state.stops.items() for r in np.flatnonzero(m)}
+    assert stopped == {(str(i), s) for i, s in zip(result.ids, result.stop, strict=True) if s}
+
+
+def test_quality_on_a_validation_result_matches(tmp_path: Path) -> None:
+    q, path = cases(tmp_path)[0]
+    data = read_export(path)
+    theirs = validate(q, path, keep_cells=True)
+    via_validation = run_quality(q, data, state=state_from_validation(q, theirs))
+    standalone = run_quality(q, data)
+    assert [(f.check, f.row) for f in via_validation.findings] == [(f.check, f.row) for f in standalone.findings]
+    np.testing.assert_array_equal(via_validation.state.nonresponse, standalone.state.nonresponse)
+    records = as_data_findings(via_validation.findings)
+    assert records[0].row == via_validation.findings[0].row + 1 and records[0].to_json()["check"]
+
+
+def test_no_id_column_is_a_clear_error(tmp_path: Path) -> None:
+    q, path = cases(tmp_path)[0]
+    data = read_export(path).drop(columns=["id"])
+    with pytest.raises(RouteError, match="no respondent id column 'id'"):
+        route_state(q, data)
+
+
+def test_rule_logic_matches_sql_null_logic() -> None:
+    # Oracle: DuckDB evaluates the same condition with NULL for a missing measure
+    # (three-valued logic as the SQL standard defines it); a row holds where it is TRUE.
+    q = load_text('survey t "t"\nlast: single yn "Last"\ncodes yn\n  yes = 1 "Yes"\n').questionnaire
+    rng = np.random.default_rng(7)
+    share = rng.choice([0.2, 0.6, 0.9, np.nan], size=64)
+    due = rng.choice([0.0, 2.0, 5.0, np.nan], size=64)
+    rules = [
+        "answered_share > 0.5 and not (due_count < 3)",
+        "answered_share > 0.8 or due_count >= 5",
+        "not (answered_share <= 0.5 or due_count = 2)",
+        "answered_share in 0.5..1 and due_count != 0",
+    ]
+    sql = {
+        rules[0]: "answered_share > 0.5 and not (due_count < 3)",
+        rules[1]: "answered_share > 0.8 or due_count >= 5",
+        rules[2]: "not (answered_share <= 0.5 or due_count = 2)",
+        rules[3]: "answered_share between 0.5 and 1 and due_count <> 0",
+    }
+    con = duckdb.connect()
+    con.register("m", pd.DataFrame({"i": np.arange(64), "answered_share": share, "due_count": due}))
+    for text in rules:
+        expr = parse_rule(text, q).expr
+        ours = evaluate_columns(q, expr, 64, numbers={"answered_share": share, "due_count": due}).t
+        # NaN from pandas registers as a float NaN in DuckDB, not NULL: make it NULL.
+        got = con.execute(
+            "select coalesce(" + sql[text] + ", false) from (select i, "
+            "case when isnan(answered_share) then null else answered_share end as answered_share, "
+            "case when isnan(due_count) then null else due_count end as due_count from m) order by i"
+        ).fetchall()
+        np.testing.assert_array_equal(ours, np.array([r[0] for r in got]), err_msg=text)
+
+
+def test_command_path_validates_once(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    from logiccheck.cli import validate as cli_validate
+    from logiccheck.data.mapping import DataMapping
+    from logiccheck.quality import attach
+
+    calls: list[bool] = []
+    real = cli_validate.validate
+
+    def counted(*args, **kwargs):  # type: ignore[no-untyped-def]
+        calls.append(kwargs.get("keep_cells", True))
+        return real(*args, **kwargs)
+
+    def second_pass(*args, **kwargs):  # type: ignore[no-untyped-def]
+        raise AssertionError("the quality checks validated the export a second time")
+
+    monkeypatch.setattr(cli_validate, "validate", counted)
+    monkeypatch.setattr(attach, "validate", second_pass)
+    loaded = load_file(SPECS / "bikeshare.qlc")
+    result = cli_validate.run_validation(loaded, str(SPECS / "bikeshare_export.csv"), DataMapping(), None, 1000, "never")
+    assert calls == [True]
+    # The quality findings are there too (the demo export has a near-copy).
+    assert "near-duplicate" in {f.check for f in result.findings}
+
+
+def test_api_drops_the_cells_unless_asked() -> None:
+    import logiccheck
+
+    survey = logiccheck.load(SPECS / "bikeshare.qlc")
+    export = SPECS / "bikeshare_export.csv"
+    plain = survey.validate(export)
+    kept = survey.validate(export, keep_cells=True)
+    assert plain.raw.due is None and plain.raw.frame is None
+    assert kept.raw.due is not None and kept.raw.due.shape == (kept.raw.respondents, len(kept.raw.items))
+    assert [(f.check, f.row) for f in plain.raw.findings] == [(f.check, f.row) for f in kept.raw.findings]
