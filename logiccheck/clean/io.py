@@ -4,14 +4,12 @@ from __future__ import annotations
 
 import hashlib
 import json
-import os
-import tempfile
-from collections.abc import Callable
 from pathlib import Path
 from typing import Any
 
 import pandas as pd
 
+from logiccheck.atomic import atomic_write
 from logiccheck.clean.sheet import escape, unescape
 
 FORMATS = {".csv": "csv", ".parquet": "parquet", ".xlsx": "xlsx"}
@@ -59,20 +57,6 @@ def file_hash(path: str | Path) -> str:
         for block in iter(lambda: fh.read(1 << 20), b""):
             h.update(block)
     return h.hexdigest()
-
-
-def atomic_write(path: Path, write: Callable[[Path], Any]) -> None:
-    """`write(tmp)` into a temporary file in the same folder, then rename over `path`:
-    an interrupted run leaves the old file or none, never half of one."""
-    path.parent.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent)
-    os.close(fd)
-    try:
-        write(Path(tmp))
-        os.replace(tmp, path)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
 
 
 def sheet_frame(frame: pd.DataFrame, safe: bool) -> pd.DataFrame:

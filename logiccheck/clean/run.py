@@ -154,6 +154,7 @@ def clean_export(
         columns=["row", "respondent", "check", "severity", "item", "value", "message"],
     ).astype(str)
 
+    out.mkdir(parents=True, exist_ok=True)
     write_table(outcome.cleaned, main_out, fmt, policy.sheet_safe)
     if fmt != "csv":
         write_table(outcome.cleaned, targets[1], "csv", policy.sheet_safe)

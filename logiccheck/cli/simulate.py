@@ -3,14 +3,13 @@
 from __future__ import annotations
 
 import io
-import os
 import sys
-import tempfile
 from pathlib import Path
 
 import click
 import pyarrow.csv as pacsv
 
+from logiccheck.atomic import atomic_write
 from logiccheck.cli.common import fail
 from logiccheck.cli.validate import load_spec, spec_note
 from logiccheck.data.simulate import simulate, write_csv, write_faults
@@ -46,10 +45,7 @@ def simulate_command(spec: str, rows: int, seed: int, faults: float, out: str | 
     if path.suffix.lower() in (".parquet", ".pq"):
         import pyarrow.parquet as pq
 
-        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", dir=path.parent)
-        os.close(fd)
-        pq.write_table(sim.table, tmp)
-        os.replace(tmp, path)
+        atomic_write(path, lambda tmp: pq.write_table(sim.table, tmp))
     else:
         write_csv(sim.table, path)
     side = faults_path(path)

@@ -9,8 +9,6 @@ seed gives the same export.
 
 from __future__ import annotations
 
-import os
-import tempfile
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -19,6 +17,7 @@ import pyarrow as pa
 import pyarrow.compute as pc
 import pyarrow.csv as pacsv
 
+from logiccheck.atomic import atomic_write
 from logiccheck.data.evaluate import Evaluator
 from logiccheck.data.frame import OK, Cells, NamePlan, plan_layout
 from logiccheck.data.mapping import DataMapping
@@ -220,16 +219,7 @@ def _invalid_number(plan: NamePlan) -> float:
 
 def write_csv(table: pa.Table, path: str | Path) -> None:
     """Write an export atomically (temp file beside it, then replace)."""
-    path = Path(path)
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", dir=path.parent or ".")
-    os.close(fd)
-    try:
-        pacsv.write_csv(table, tmp, write_options=pacsv.WriteOptions(quoting_style="needed"))
-        os.replace(tmp, path)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
+    atomic_write(path, lambda tmp: pacsv.write_csv(table, tmp, write_options=pacsv.WriteOptions(quoting_style="needed")))
 
 
 def write_faults(faults: list[tuple[int, str, str, str]], path: str | Path) -> None:

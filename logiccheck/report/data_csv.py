@@ -4,13 +4,12 @@ from __future__ import annotations
 
 import csv
 import io
-import os
-import tempfile
 from pathlib import Path
 
 import pyarrow as pa
 import pyarrow.csv as pacsv
 
+from logiccheck.atomic import write_text_atomic
 from logiccheck.data.result import TABLE_COLUMNS, ValidationResult
 
 ARROW_BLOCK = 64  # blocks at least this large are written by pyarrow
@@ -48,24 +47,11 @@ def write_findings_csv(result: ValidationResult, fh: io.TextIOBase) -> None:
         fh.write(buf.getvalue().decode("utf-8"))
 
 
-def _atomic_write(path: Path, write) -> None:  # type: ignore[no-untyped-def]
-    """Write to a temp file beside `path`, then replace it in one step."""
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", dir=path.parent)
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
-            write(fh)
-        os.replace(tmp, path)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
-
-
 def write_csv_dir(result: ValidationResult, out: str | Path) -> list[Path]:
     folder = Path(out)
     folder.mkdir(parents=True, exist_ok=True)
     items = folder / "items.csv"
     findings = folder / "findings.csv"
-    _atomic_write(items, lambda fh: fh.write(items_csv(result)))
-    _atomic_write(findings, lambda fh: write_findings_csv(result, fh))
+    write_text_atomic(items, lambda fh: fh.write(items_csv(result)))
+    write_text_atomic(findings, lambda fh: write_findings_csv(result, fh))
     return [items, findings]

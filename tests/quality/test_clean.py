@@ -9,7 +9,7 @@ import pandas as pd
 import pytest
 from click.testing import CliRunner
 
-from logiccheck.clean import io as clean_io
+from logiccheck.atomic import atomic_write
 from logiccheck.clean.apply import reverse_audit
 from logiccheck.clean.io import file_hash, read_export, read_sheet_csv
 from logiccheck.clean.policy import CleanPolicy, PolicyError, load_policy
@@ -120,7 +120,7 @@ def test_outputs_are_written_atomically(tmp_path: Path, monkeypatch: pytest.Monk
             p.write_text('{"half": ')
             raise KeyboardInterrupt
 
-        clean_io.atomic_write(path, half)
+        atomic_write(path, half)
 
     monkeypatch.setattr("logiccheck.clean.run.write_json", broken)
     with pytest.raises(KeyboardInterrupt):
