@@ -10,7 +10,7 @@ __version__ = "0.1.0"
 # The notebook API, imported on first use so `import logiccheck` stays fast.
 # `logiccheck.load` is also the submodule logiccheck/load.py, made callable there, so
 # `logiccheck.load(path)` works whether or not that module was imported first.
-_API = {"loads", "Survey", "Validation", "Cleaning", "Diagnostics", "StageMissing"}
+_API = {"loads", "Survey", "Validation", "Cleaning", "Diagnostics"}
 __all__ = ["__version__", "load", *sorted(_API)]
 
 

@@ -27,10 +27,6 @@ from logiccheck.report.report_data import ReportData, from_validation
 DIAGNOSTIC_COLUMNS = ["check", "severity", "file", "line", "column", "item", "message"]
 
 
-class StageMissing(RuntimeError):
-    """A stage this build does not include (validation, cleaning)."""
-
-
 class Diagnostics(list[Diagnostic]):
     """The lint diagnostics: a plain list, plus `.to_frame()` and a notebook view."""
 
@@ -201,10 +197,7 @@ class Survey:
         `.raw` (e.g. `.raw.item_states("trips")`). Raises `logiccheck.data.DataReadError` /
         `MappingError` for bad input.
         """
-        try:
-            data_stage = importlib.import_module("logiccheck.data")
-        except ModuleNotFoundError as err:
-            raise StageMissing("validation needs the data stage (logiccheck.data), which this build lacks") from err
+        data_stage = importlib.import_module("logiccheck.data")  # pandas-heavy: load on first use
         if mapping is None:
             model = self.config().models.get("data")  # the configuration's [data] table
             mapping_obj = model if isinstance(model, data_stage.DataMapping) else data_stage.DataMapping()
@@ -254,11 +247,8 @@ class Survey:
         for the configuration found above the spec. `out`: a folder for the cleaned file,
         audit and summary (None: kept in memory only). The input is never modified.
         """
-        try:
-            run = importlib.import_module("logiccheck.clean.run")
-            policies = importlib.import_module("logiccheck.clean.policy")
-        except ModuleNotFoundError as err:
-            raise StageMissing("cleaning needs the clean stage (logiccheck.clean), which this build lacks") from err
+        run = importlib.import_module("logiccheck.clean.run")
+        policies = importlib.import_module("logiccheck.clean.policy")
         if self.path is not None:
             configured, quality = policies.configured_policy(self.path)
         else:
@@ -322,4 +312,4 @@ def loads(text: str, file: str = "<spec>") -> Survey:
     return Survey(load_text(text, file), None)
 
 
-__all__ = ["Cleaning", "Diagnostics", "StageMissing", "Survey", "Validation", "load", "loads"]
+__all__ = ["Cleaning", "Diagnostics", "Survey", "Validation", "load", "loads"]

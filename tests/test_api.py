@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import importlib.util
 import json
 import subprocess
 import sys
@@ -85,21 +84,6 @@ def test_picture_bytes() -> None:
     assert survey.picture("png")[:4] == b"\x89PNG"
 
 
-@pytest.mark.skipif(importlib.util.find_spec("logiccheck.data") is not None, reason="the data stage is present")
-def test_validate_without_the_data_stage_says_so() -> None:
-    survey = logiccheck.load("specs/bikeshare.qlc")
-    with pytest.raises(logiccheck.StageMissing, match=r"logiccheck\.data"):
-        survey.validate(pd.DataFrame({"id": [1]}))
-
-
-@pytest.mark.skipif(importlib.util.find_spec("logiccheck.clean") is not None, reason="the clean stage is present")
-def test_clean_without_the_clean_stage_says_so() -> None:
-    survey = logiccheck.load("specs/bikeshare.qlc")
-    with pytest.raises(logiccheck.StageMissing, match=r"logiccheck\.clean"):
-        survey.clean(pd.DataFrame({"id": [1]}))
-
-
-@pytest.mark.skipif(importlib.util.find_spec("logiccheck.clean") is None, reason="the clean stage is not in this build")
 def test_clean_gives_frames_and_keeps_the_input(tmp_path) -> None:
     import hashlib
     from pathlib import Path

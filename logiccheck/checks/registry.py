@@ -96,13 +96,7 @@ def _load() -> None:
         return
     _loaded = True
     for module in CHECK_MODULES:
-        try:
-            importlib.import_module(module)
-        except ModuleNotFoundError as err:
-            # A stage not built yet (the module or its package); any other missing
-            # module is a real error.
-            if err.name is None or not (module == err.name or module.startswith(err.name + ".")):
-                raise
+        importlib.import_module(module)
 
 
 def all_checks() -> dict[str, CheckInfo]:
