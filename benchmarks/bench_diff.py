@@ -15,7 +15,7 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
 from logiccheck.diff import diff_questionnaires
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 
 
 def spec(blocks: int, tighten: int | None) -> str:

@@ -18,7 +18,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
 from benchmarks.generate import Shape, generate
 from logiccheck.checks.runner import run_checks
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 from logiccheck.syntax.grammar import spec_parser
 
 BAR_SECONDS = 2.0  # the bar for 5,000 items on the 2-core CI machine

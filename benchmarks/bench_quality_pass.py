@@ -29,7 +29,7 @@ from benchmarks.bench_validate import prepare  # noqa: E402
 def child(mode: str, path: str, spec: str) -> None:
     """One measurement in this process; prints a JSON line."""
     from logiccheck.data.validate import validate
-    from logiccheck.load import load_text
+    from logiccheck.loader import load_text
 
     loaded = load_text(Path(spec).read_text(), spec)
     q = loaded.questionnaire

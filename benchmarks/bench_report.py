@@ -23,7 +23,7 @@ from benchmarks.generate import generate  # noqa: E402
 from logiccheck.api import Survey  # noqa: E402
 from logiccheck.data import validate  # noqa: E402
 from logiccheck.data.simulate import simulate  # noqa: E402
-from logiccheck.load import load_file, load_text  # noqa: E402
+from logiccheck.loader import load_file, load_text  # noqa: E402
 
 
 def timed_report(survey: Survey, result: object, folder: Path, name: str) -> tuple[float, float, int]:

@@ -24,7 +24,7 @@ from benchmarks.generate import routing_spec
 from logiccheck.checks.context import LintContext
 from logiccheck.checks.registry import all_checks
 from logiccheck.checks.runner import run_checks
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 from logiccheck.logic.routing import RoutingAnalysis
 
 REACH = ("asked", "reached", "block")

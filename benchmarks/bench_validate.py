@@ -60,7 +60,7 @@ def generate(path: Path, rows: int) -> None:
     import pyarrow.csv as pacsv
 
     from logiccheck.data.simulate import simulate
-    from logiccheck.load import load_text
+    from logiccheck.loader import load_text
 
     q = load_text(make_spec(), "bench.qlc").questionnaire
     tmp = path.with_name(path.name + ".part")
@@ -95,7 +95,7 @@ def child(mode: str, path: str, spec: str) -> None:
         from rich.console import Console
 
         from logiccheck.data.validate import validate
-        from logiccheck.load import load_text
+        from logiccheck.loader import load_text
         from logiccheck.report.data_csv import items_csv, write_findings_csv
         from logiccheck.report.data_text import render_validation
 
@@ -112,7 +112,7 @@ def child(mode: str, path: str, spec: str) -> None:
         out["findings"] = result.finding_count
         out["rows"] = result.respondents
     elif mode in ("sample-ours", "sample-duckdb", "sample-rowwise"):
-        from logiccheck.load import load_text
+        from logiccheck.loader import load_text
 
         q = load_text(Path(spec).read_text(), spec).questionnaire
         t0 = time.perf_counter()

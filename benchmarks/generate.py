@@ -200,7 +200,7 @@ def routing_spec(items: int, seed: int = 1) -> str:
 
 def item_count(text: str) -> int:
     """Items and grid rows in a generated spec (for reporting)."""
-    from logiccheck.load import load_text
+    from logiccheck.loader import load_text
 
     return len(load_text(text).questionnaire.items())
 

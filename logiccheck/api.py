@@ -20,7 +20,7 @@ from typing import Any
 import pandas as pd
 
 from logiccheck.diagnostics import Diagnostic
-from logiccheck.load import Loaded, load_file, load_text
+from logiccheck.loader import Loaded, load_file, load_text
 from logiccheck.model.questionnaire import Questionnaire
 from logiccheck.report.report_data import ReportData, from_validation
 
@@ -303,7 +303,7 @@ class Survey:
 
 
 def load(path: str | Path) -> Survey:
-    """Read a `.qlc` spec file (raises logiccheck.load.SpecReadError when unreadable)."""
+    """Read a `.qlc` spec file (raises logiccheck.loader.SpecReadError when unreadable)."""
     return Survey(load_file(path), str(path))
 
 

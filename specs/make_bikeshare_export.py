@@ -18,7 +18,7 @@ ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
 from logiccheck.data.simulate import simulate  # noqa: E402
-from logiccheck.load import load_file  # noqa: E402
+from logiccheck.loader import load_file  # noqa: E402
 
 SPEC = ROOT / "specs" / "bikeshare.qlc"
 OUT = ROOT / "specs" / "bikeshare_export.csv"

@@ -8,7 +8,7 @@ import pytest
 
 from logiccheck.checks.registry import all_checks
 from logiccheck.checks.runner import run_checks
-from logiccheck.load import load_file
+from logiccheck.loader import load_file
 from tests.conftest import CHECK_FIXTURES
 
 SPEC_CHECKS = sorted(n for n, c in all_checks().items() if c.stage in ("spec", "routing"))

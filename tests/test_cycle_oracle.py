@@ -14,7 +14,7 @@ from hypothesis import strategies as st
 
 from logiccheck.checks.runner import run_checks
 from logiccheck.checks.static.cycles import MAX_LOOPS
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 
 
 @st.composite

@@ -10,7 +10,7 @@ import pytest
 
 from logiccheck.checks.registry import all_checks
 from logiccheck.checks.runner import run_checks
-from logiccheck.load import load_file
+from logiccheck.loader import load_file
 from tests.conftest import SPECS
 
 DEMOS = ["clinic_visit.qlc", "onboarding.qlc"]

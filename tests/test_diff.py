@@ -8,7 +8,7 @@ import json
 import pytest
 
 from logiccheck.diff import diff_questionnaires
-from logiccheck.load import load_file, load_text
+from logiccheck.loader import load_file, load_text
 from tests.cli_run import Ran, run_cli
 from tests.conftest import ROOT
 from tests.diff_oracle import Router, parse_witness

@@ -7,7 +7,7 @@ import re
 from click.testing import CliRunner
 
 from logiccheck.cli.main import cli
-from logiccheck.load import load_file, load_text
+from logiccheck.loader import load_file, load_text
 from logiccheck.report.graph_data import build_drawing, span_text
 from logiccheck.report.graph_dot import to_dot
 from logiccheck.report.graph_mermaid import to_mermaid

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from logiccheck.checks.runner import run_checks
-from logiccheck.load import load_file, load_text
+from logiccheck.loader import load_file, load_text
 from logiccheck.model import nodes as n
 
 

@@ -12,7 +12,7 @@ import jsonschema
 from logiccheck.checks.registry import all_checks
 from logiccheck.checks.runner import run_checks
 from logiccheck.diagnostics import Diagnostic, Related, Severity, Span
-from logiccheck.load import load_file
+from logiccheck.loader import load_file
 from logiccheck.report.github import annotation, escape_data, escape_property, github_text
 from logiccheck.report.junit import junit_text
 from logiccheck.report.sarif import sarif_log

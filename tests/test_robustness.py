@@ -6,7 +6,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from logiccheck.checks.runner import run_checks
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 from logiccheck.report.graph_data import build_drawing
 from logiccheck.report.graph_dot import to_dot
 from logiccheck.report.graph_mermaid import to_mermaid

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from logiccheck.checks.runner import run_checks
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 
 HEAD = 'survey s "t"\ncodes yesno\n  yes = 1 "Yes"\n  no = 2 "No"\nnonresponse\n  dk = 98 "Don\'t know"\n'  # 6 lines
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from logiccheck.checks.runner import run_checks
 from logiccheck.checks.suppress import scan
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 
 HEAD = 'survey s "S"\n\ncodes yesno\n  yes = 1 "Yes"\n  no = 2 "No"\n\n'
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import pytest
 
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 
 HEAD = 'survey s "t"\ncodes yesno\n  yes = 1 "Yes"\n  no = 2 "No"\n'  # 4 lines
 SECTION = 'section part "Part"\n'

@@ -8,7 +8,7 @@ from logiccheck.checks.context import LintContext
 from logiccheck.checks.registry import all_checks
 from logiccheck.checks.suppress import apply_suppressions
 from logiccheck.diagnostics import Diagnostic, Severity, Span
-from logiccheck.load import Loaded, gc_paused
+from logiccheck.loader import Loaded, gc_paused
 
 STAGE_ORDER = ("spec", "routing")
 

@@ -13,7 +13,7 @@ from logiccheck.clean.run import clean_export
 from logiccheck.cli.common import EXIT_OK, color_option, fail, make_console
 from logiccheck.cli.rates import read_outcomes
 from logiccheck.data.mapping import MappingError, load_mapping
-from logiccheck.load import SpecReadError, load_file
+from logiccheck.loader import SpecReadError, load_file
 from logiccheck.quality.completeness import RuleError
 from logiccheck.quality.rates import RatesError
 from logiccheck.quality.route import RouteError

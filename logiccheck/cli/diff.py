@@ -8,7 +8,7 @@ import click
 
 from logiccheck.cli.common import EXIT_FINDINGS, EXIT_OK, color_option, fail, make_console
 from logiccheck.diff import diff_questionnaires
-from logiccheck.load import SpecReadError, load_file
+from logiccheck.loader import SpecReadError, load_file
 from logiccheck.report.diff_json import diff_json
 from logiccheck.report.diff_markdown import diff_markdown
 from logiccheck.report.diff_text import render_diff

@@ -7,7 +7,7 @@ import sys
 import click
 
 from logiccheck.cli.common import fail
-from logiccheck.load import Loaded, SpecReadError, load_file
+from logiccheck.loader import Loaded, SpecReadError, load_file
 from logiccheck.report.extra import ReportExtraMissing
 from logiccheck.report.graph_data import build_drawing
 from logiccheck.report.graph_dot import to_dot

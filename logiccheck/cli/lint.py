@@ -11,7 +11,7 @@ from logiccheck.checks.runner import STAGE_ORDER, run_checks
 from logiccheck.cli.common import color_option, exit_status, fail, fail_on_option, make_console
 from logiccheck.config import Config, ConfigError, config_for
 from logiccheck.diagnostics import Diagnostic, Severity
-from logiccheck.load import SpecReadError, load_file
+from logiccheck.loader import SpecReadError, load_file
 from logiccheck.report.github import github_text
 from logiccheck.report.junit import junit_text
 from logiccheck.report.lint_json import lint_json

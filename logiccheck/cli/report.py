@@ -8,7 +8,7 @@ from typing import Any
 import click
 
 from logiccheck.cli.common import fail
-from logiccheck.load import Loaded, SpecReadError, load_file
+from logiccheck.loader import Loaded, SpecReadError, load_file
 from logiccheck.report.extra import ReportExtraMissing, require_report_extra
 from logiccheck.report.output import write_atomic
 

@@ -12,7 +12,7 @@ from rich.progress import BarColumn, Progress, SpinnerColumn, TextColumn, TimeEl
 from logiccheck.cli.common import color_option, fail, fail_on_option, make_console
 from logiccheck.data import DataMapping, DataReadError, MappingError, ValidationResult, load_mapping, validate
 from logiccheck.diagnostics import Severity
-from logiccheck.load import Loaded, SpecReadError, load_file
+from logiccheck.loader import Loaded, SpecReadError, load_file
 from logiccheck.quality.attach import attach_quality
 from logiccheck.quality.config import QualityConfig
 from logiccheck.report.data_csv import items_csv, write_csv_dir

@@ -115,7 +115,7 @@ def test_findings_csv_is_the_same_by_either_writer(monkeypatch) -> None:
     import io
 
     from logiccheck.data import validate
-    from logiccheck.load import load_file
+    from logiccheck.loader import load_file
     from logiccheck.report import data_csv
 
     result = validate(load_file(SPEC).questionnaire, DEMO)

@@ -10,7 +10,7 @@ import pytest
 
 from logiccheck.data import DataMapping, MappingError, load_mapping, validate
 from logiccheck.data.mapping import mapping_from_dict
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 
 SPEC = """survey map "Mapping"
 

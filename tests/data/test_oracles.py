@@ -20,7 +20,7 @@ from hypothesis import strategies as st
 
 from logiccheck.data import validate
 from logiccheck.data.simulate import simulate, write_csv
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 from tests.data.rowwise import interpret_csv
 from tests.data.specgen import make_spec
 from tests.data.sqloracle import sql_validate

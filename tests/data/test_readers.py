@@ -14,7 +14,7 @@ import pytest
 
 from logiccheck.data import DataReadError, validate
 from logiccheck.data.readers import first_bad_byte
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 
 SPEC = """survey fmt "Formats"
 

@@ -6,7 +6,7 @@ from __future__ import annotations
 import pandas as pd
 
 from logiccheck.data import validate
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 
 SPEC = """survey worked "Worked example"
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import z3
 
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 from logiccheck.logic import Encoding
 from logiccheck.model import nodes as n
 

@@ -7,7 +7,7 @@ import re
 
 from logiccheck.checks.registry import all_checks
 from logiccheck.checks.runner import run_checks
-from logiccheck.load import load_file
+from logiccheck.loader import load_file
 from tests.conftest import SPECS
 
 FAULTY = SPECS / "faulty" / "routing.qlc"

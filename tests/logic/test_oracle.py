@@ -7,7 +7,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 from logiccheck.logic.routing import RoutingAnalysis
 from tests.logic.oracle import Oracle
 

@@ -16,7 +16,7 @@ from logiccheck.clean.policy import CleanPolicy, PolicyError, load_policy
 from logiccheck.clean.run import clean_export
 from logiccheck.clean.sheet import escape, unescape
 from logiccheck.cli.main import cli
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 from tests.quality.planted import COLUMNS, SPEC, build, card_row
 
 

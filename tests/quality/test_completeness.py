@@ -6,7 +6,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 from logiccheck.quality.bridge import route_state
 from logiccheck.quality.completeness import RuleError, dispositions, measures, parse_rule
 from logiccheck.quality.config import CompletenessConfig

@@ -4,7 +4,7 @@ respondents are left alone."""
 from __future__ import annotations
 
 from logiccheck.clean.io import read_export
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 from logiccheck.quality.run import run_quality
 from tests.quality.planted import SPEC, build
 

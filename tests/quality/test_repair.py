@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 from logiccheck.quality.repair import repair_hint
 
 # The worked example (Fellegi, I. P. & Holt, D. (1976), "A systematic approach to

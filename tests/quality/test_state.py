@@ -13,7 +13,7 @@ import pytest
 from logiccheck.clean.io import read_export
 from logiccheck.data import validate
 from logiccheck.data.evaluate import evaluate_columns
-from logiccheck.load import load_file, load_text
+from logiccheck.loader import load_file, load_text
 from logiccheck.quality.bridge import as_data_findings, route_state, state_from_validation
 from logiccheck.quality.completeness import parse_rule
 from logiccheck.quality.route import RouteError

@@ -14,7 +14,7 @@ pytest.importorskip("jinja2")
 pytest.importorskip("matplotlib")
 
 from logiccheck.checks.runner import run_checks
-from logiccheck.load import load_file
+from logiccheck.loader import load_file
 from logiccheck.report.graph_picture import BOX_STYLE
 from logiccheck.report.html import render_html
 from logiccheck.report.item_chart import COLOURS

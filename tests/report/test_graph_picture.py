@@ -14,7 +14,7 @@ from matplotlib.text import Text
 from logiccheck.cli.main import cli
 from logiccheck.diagnostics import Diagnostic, Severity, Span
 from logiccheck.graph.deps import dependency_graph
-from logiccheck.load import load_file, load_text
+from logiccheck.loader import load_file, load_text
 from logiccheck.report.graph_flow import flow_picture
 from logiccheck.report.graph_picture import BOX_STYLE, figure_bytes, routing_pictures
 from tests.report.specgen import sixty_item_spec

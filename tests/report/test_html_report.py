@@ -12,7 +12,7 @@ pytest.importorskip("matplotlib")
 
 from logiccheck.checks.runner import run_checks
 from logiccheck.cli.main import cli
-from logiccheck.load import load_file, load_text
+from logiccheck.loader import load_file, load_text
 from logiccheck.report.html import render_fragment, render_html
 from logiccheck.report.report_data import ReportData, from_validation
 from tests.report.fakes import NASTY, fake_result

@@ -8,7 +8,7 @@ import pytest
 
 pytest.importorskip("matplotlib")
 
-from logiccheck.load import load_file
+from logiccheck.loader import load_file
 from logiccheck.report.item_chart import chart_rows, item_chart
 from logiccheck.report.report_data import from_validation
 from tests.report.fakes import fake_result

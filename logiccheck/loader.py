@@ -3,13 +3,10 @@
 from __future__ import annotations
 
 import gc
-import sys
-import types
 from collections.abc import Iterator
 from contextlib import contextmanager
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any
 
 from logiccheck.diagnostics import Diagnostic
 from logiccheck.model.build import build_spec
@@ -74,17 +71,3 @@ def load_text(text: str, file: str = "<spec>") -> Loaded:
 
 def load_file(path: str | Path) -> Loaded:
     return load_text(read_spec_text(path), str(path))
-
-
-class _LoadModule(types.ModuleType):
-    """This module shares its name with the notebook entry point `logiccheck.load(path)`
-    (the package attribute is this module once it is imported), so calling it loads a
-    spec as a `logiccheck.api.Survey`."""
-
-    def __call__(self, path: str | Path) -> Any:
-        from logiccheck.api import load
-
-        return load(path)
-
-
-sys.modules[__name__].__class__ = _LoadModule
