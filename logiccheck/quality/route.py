@@ -15,6 +15,7 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from logiccheck.data.evaluate import close  # decimals compare as the solver reads them
 from logiccheck.model import nodes as n
 from logiccheck.model.questionnaire import Entry, Questionnaire
 
@@ -192,24 +193,28 @@ class _Evaluator:
             a, b = self.value(expr.left), self.value(expr.right)
             known = ~np.isnan(a.v) & ~np.isnan(b.v)
             if expr.op in ("=", "!="):
-                eq = known & (a.v == b.v)
-                ne = known & (a.v != b.v)
+                same = close(a.v, b.v)
+                eq = known & same
+                ne = known & ~same
                 return Tri(eq, ne) if expr.op == "=" else Tri(ne, eq)
             known &= ~a.nr & ~b.nr
             with np.errstate(invalid="ignore"):
-                res = {"<": a.v < b.v, "<=": a.v <= b.v, ">": a.v > b.v, ">=": a.v >= b.v}[expr.op]
+                same = close(a.v, b.v)
+                res = {"<": (a.v < b.v) & ~same, "<=": (a.v < b.v) | same,
+                       ">": (a.v > b.v) & ~same, ">=": (a.v > b.v) | same}[expr.op]
             return Tri(known & res, known & ~res)
         if isinstance(expr, n.InList):
             a = self.value(expr.subject)
             known = ~np.isnan(a.v)
             hit = np.zeros(self.n, bool)
             for v in expr.values:
-                hit |= known & (a.v == self.value(v).v)
+                hit |= known & close(a.v, self.value(v).v)
             return Tri(hit, known & ~hit)
         if isinstance(expr, n.InRange):
             a = self.value(expr.subject)
             known = ~np.isnan(a.v) & ~a.nr
-            res = (a.v >= expr.lo) & (a.v <= expr.hi)
+            with np.errstate(invalid="ignore"):
+                res = ((a.v >= expr.lo) | close(a.v, expr.lo)) & ((a.v <= expr.hi) | close(a.v, expr.hi))
             return Tri(known & res, known & ~res)
         if isinstance(expr, n.Has):
             x = self.value(expr.subject)
