@@ -243,6 +243,52 @@ def test_generated_specs_route_alike(seed: int) -> None:
     _random_case(make_spec(seed, size=6), seed)
 
 
+# Constructs neither random generator writes: notes, nested and resumed sections, a
+# skip to a section, a stop without a condition, number sample variables, checks
+# reading count() and arithmetic, division by zero.
+UNCOMMON = """survey ferry "Harbour ferry passengers"
+
+codes yesno
+  yes = 1 "Yes"
+  no = 2 "No"
+
+nonresponse
+  dk = 98 "Don't know"
+
+sample pier single { north = 1 "North pier", south = 2 "South pier" }
+sample crossings number 0..3
+
+trips: number 0..4 "Trips this week?"
+returns: number 0..4 "Return trips?"
+welcome: note "Thanks for riding" when trips / returns > 1 or crossings = 0
+skip to harbour when trips - returns = 0
+section deck "On deck" when answered(pier) and trips in (1, 98)
+  seat: single yesno "Did you find a seat?" when asked(welcome)
+  section cabin "In the cabin" when seat != no
+    warm: single yesno "Was the cabin warm?"
+    stop cabin_done "That is all for cabin riders."
+  rail: single yesno "Did you stand at the rail?" required
+section harbour "At the harbour" when not (trips >= 3)
+  skip to last when returns in 1..2
+  kiosk: multi { coffee = 1 "Coffee", paper = 2 "Newspaper" } "What did you buy?"
+  spend: number 0..9 "How much did you spend?" when count(kiosk) * 2 - trips > 1
+  queue: single yesno "Did you queue?" when spend = 98 or spend != 3
+last: single yesno "Will you ride again?" when returns != 4 or pier = south
+check spend_rule "Spending covers purchases"
+  when answered(kiosk)
+  require spend >= count(kiosk)
+"""
+
+
+@pytest.mark.parametrize("faults", [0.0, 0.3])
+def test_uncommon_constructs_route_alike(faults: float) -> None:
+    loaded = load_text(UNCOMMON)
+    assert _clean(loaded)
+    assert forward(loaded.questionnaire, rows=400, seed=11, faults=faults, sample=60) == 60
+    assert backward(loaded) > 0
+    unreachable_never_due(loaded, range(2), rows=200)
+
+
 # ------------------------------------------------------------------ regressions
 
 REQUIRED_GATE = """survey pantry "Food pantry intake"
