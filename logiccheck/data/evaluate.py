@@ -71,6 +71,18 @@ Compiled = Callable[[Env], Any]  # Env -> TV | NumV
 Supplier = Callable[[Entry, np.ndarray], "Cells | None"]
 
 
+# Spec numbers are decimals (DESIGN §3) and the solver reads them exactly; float
+# arithmetic on them leaves rounding error (0.1 + 0.2 is not 0.3 in binary), so values
+# this close, relative to their size, count as equal.
+REL_TOL = 1e-9
+
+
+def close(x: np.ndarray, y: np.ndarray | float) -> np.ndarray:
+    """x equals y up to the rounding error of float arithmetic (NaN is never close)."""
+    with np.errstate(invalid="ignore"):
+        return np.abs(x - y) <= REL_TOL * np.maximum(1.0, np.maximum(np.abs(x), np.abs(y)))
+
+
 def kleene_and(parts: list[TV]) -> TV:
     t, f = parts[0].t.copy(), parts[0].f.copy()
     for p in parts[1:]:
@@ -176,14 +188,15 @@ class Compiler:
                     x, y = a.num, b.num
                 known = ~np.isnan(x) & ~np.isnan(y)
                 with np.errstate(invalid="ignore"):
+                    eq = close(x, y)
                     res = {
-                        "=": np.equal,
-                        "!=": np.not_equal,
-                        "<": np.less,
-                        "<=": np.less_equal,
-                        ">": np.greater,
-                        ">=": np.greater_equal,
-                    }[op](x, y)
+                        "=": lambda: eq,
+                        "!=": lambda: ~eq,
+                        "<": lambda: np.less(x, y) & ~eq,
+                        "<=": lambda: np.less(x, y) | eq,
+                        ">": lambda: np.greater(x, y) & ~eq,
+                        ">=": lambda: np.greater(x, y) | eq,
+                    }[op]()
                 return TV(known & res, known & ~res)
 
             return compare
@@ -197,6 +210,8 @@ class Compiler:
                 s = subject(env).raw
                 known = ~np.isnan(s)
                 hit = np.isin(s, values)
+                for v in values:
+                    hit |= close(s, v)
                 return TV(known & hit, known & ~hit)
 
             return in_list
@@ -207,7 +222,7 @@ class Compiler:
                 s = subject(env).num
                 known = ~np.isnan(s)
                 with np.errstate(invalid="ignore"):
-                    hit = (s >= lo) & (s <= hi)
+                    hit = ((s >= lo) | close(s, lo)) & ((s <= hi) | close(s, hi))
                 return TV(known & hit, known & ~hit)
 
             return in_range

@@ -17,6 +17,16 @@ def _word(entry) -> str:  # type: ignore[no-untyped-def]
     return f"{entry.kind} `{entry.name}`"
 
 
+def _entered_later(a, q, name: str) -> bool:  # type: ignore[no-untyped-def]
+    """Some statement of a block not reached at its start is reached further in (a
+    `skip to` that passes over its start lands inside it)."""
+    return any(
+        a.facts.possible(("reached", e.index))
+        for e in q.entries
+        if any(o.name == name for o, _ in e.context) and ("reached", e.index) in a.questions
+    )
+
+
 @register(
     "unreachable-item",
     severity="error",
@@ -44,6 +54,8 @@ def unreachable_item(ctx: LintContext) -> Iterable[Diagnostic]:
         if any(o.name in dead_blocks for o, _ in block.context[:-1]):
             dead_blocks.add(name)
             continue
+        if _entered_later(a, q, name):
+            continue  # a skip lands inside: its statements are judged one by one
         dead_blocks.add(name)
         subject = f"block:{name}"
         word = "grid" if isinstance(block.node, n.Grid) else "section"
