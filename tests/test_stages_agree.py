@@ -27,11 +27,11 @@ from logiccheck.checks.runner import run_checks
 from logiccheck.data import validate
 from logiccheck.data.simulate import simulate
 from logiccheck.diagnostics import Severity
-from logiccheck.load import Loaded, load_file, load_text
+from logiccheck.loader import Loaded, load_file, load_text
 from logiccheck.logic.encoding import Encoding
 from logiccheck.logic.routing import RoutingAnalysis
 from logiccheck.model.questionnaire import Questionnaire
-from logiccheck.quality.route import route_state
+from logiccheck.quality.bridge import route_state
 from tests.data.specgen import make_spec
 from tests.logic.test_oracle import specs
 from tests.stages import (
@@ -382,6 +382,6 @@ def test_decimal_arithmetic_reads_exactly_in_both_stages() -> None:
         [False, False, True, True, True],
         [False, False, False, True, False],
     ]
-    # The cleaner's own router follows the same semantics.
+    # The cleaner reads the same route state.
     state = route_state(q, export.to_pandas())
     assert state.due[:, [state.col(i) for i in validate(q, export).items]].tolist() == due.tolist()
