@@ -41,7 +41,8 @@ def _reader_word(entry: Entry) -> str:
     "condition that reads an item, row or derived value defined further down the "
     "questionnaire (or the statement itself). A section or grid condition is reported "
     "once, at the condition. Sample variables are known from the start and may be read "
-    "anywhere; `check` rules are judged after the interview and may read any item.",
+    "anywhere. A `check` rule is judged where it stands (DEVELOPERS.md, semantics), so "
+    "it too must come after the items it reads.",
     why="When the condition is evaluated the respondent has not answered that item yet, "
     "so it has no value: the follow-up is never shown, or a piped text is empty.",
     bad='detail: text "Tell us more" when satisfied = no\nsatisfied: single yesno "Satisfied?"',
@@ -52,8 +53,6 @@ def forward_reference(ctx: LintContext) -> Iterable[Diagnostic]:
     starts = block_starts(q)
     done_blocks: set[tuple[int, object]] = set()
     for entry in q.entries:
-        if entry.kind == "check":
-            continue
         for read in reads_of(q, entry):
             target = q.symbols[read.name]
             if target.kind == "sample":
