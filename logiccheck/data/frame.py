@@ -279,7 +279,7 @@ def parse_numbers(arr: pa.Array | pa.ChunkedArray, blank: set[str]) -> tuple[np.
     return _numbers_of(d, is_blank)
 
 
-def type_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping, memo: dict[str, Verdicts] | None = None) -> Cells:
+def type_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping, memo: dict[tuple, Verdicts] | None = None) -> Cells:
     """One name's cells in one chunk. `memo`, when given, keeps each column's verdicts per
     distinct text from chunk to chunk, so a column whose texts repeat is judged once."""
     rows = table.num_rows
@@ -380,14 +380,15 @@ def _merge(old: Verdicts, new: Verdicts) -> Verdicts:
     )
 
 
-def _positions(plan: NamePlan, dictionary: pa.Array, mapping: DataMapping, memo: dict[str, Verdicts]) -> tuple[Verdicts, np.ndarray]:
+def _positions(plan: NamePlan, dictionary: pa.Array, mapping: DataMapping, memo: dict[tuple, Verdicts]) -> tuple[Verdicts, np.ndarray]:
     """The column's verdicts and where each text of `dictionary` sits in them; texts not
     seen before are judged now (a Python dict lookup per text: far cheaper than a
     pyarrow call on a dictionary of a few texts)."""
-    v = memo.get(plan.name)
+    key = judge_key(plan)
+    v = memo.get(key)
     if v is None or len(v.where) > MEMO_TEXTS:
         v = verdicts(plan, Distinct(dictionary, np.zeros(0, dtype=np.intp)), mapping)
-        memo[plan.name] = v
+        memo[key] = v
         return v, np.arange(len(dictionary), dtype=np.intp)
     texts = dictionary.to_pylist()
     where = v.where
@@ -398,12 +399,23 @@ def _positions(plan: NamePlan, dictionary: pa.Array, mapping: DataMapping, memo:
         fresh = verdicts(plan, Distinct(pa.array(fresh_texts, pa.string()), np.zeros(0, dtype=np.intp)), mapping)
         pos[new] = len(where) + np.arange(len(fresh_texts), dtype=np.intp)
         v = _merge(v, fresh)
-        memo[plan.name] = v
+        memo[key] = v
     return v, pos
 
 
+def judge_key(plan: NamePlan) -> tuple:
+    """What `judge` reads of a plan: columns with equal keys (a battery of items on one
+    code list) share their verdicts, so a text new to the run is judged once."""
+    strict = plan.entry.kind == "item" and bool(plan.entry.stmt.flags.strict)
+
+    def values(a: np.ndarray | None) -> tuple[float, ...] | None:
+        return None if a is None else tuple(a.tolist())
+
+    return (values(plan.allowed), values(plan.nonresponse), values(plan.global_nr), plan.integer, plan.lo, plan.hi, strict)
+
+
 def _gather(
-    plan: NamePlan, arr: pa.Array | pa.ChunkedArray, mapping: DataMapping, memo: dict[str, Verdicts] | None
+    plan: NamePlan, arr: pa.Array | pa.ChunkedArray, mapping: DataMapping, memo: dict[tuple, Verdicts] | None
 ) -> tuple[Verdicts, np.ndarray, np.ndarray, np.ndarray | None, np.ndarray | None]:
     """(verdicts, per-cell state byte, value, not-shown, unanswered) for a text column,
     Arrow chunk by Arrow chunk (each has its own dictionary)."""

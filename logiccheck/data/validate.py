@@ -122,7 +122,7 @@ class Validator:
         offset = 0
         t_read = t_eval = 0.0
         it = iter(chunks)
-        memo: dict[str, Verdicts] = {}  # per column, its verdicts per distinct text
+        memo: dict[tuple, Verdicts] = {}  # verdicts per distinct text, by `judge_key`
         while True:
             t0 = time.perf_counter()
             table = next(it, None)

@@ -24,6 +24,7 @@ nonresponse
 kept: single yesno "Kept?" gate
 count: number 0..30 "How many?" when kept = yes
 share: decimal 0..1 "Share?" strict when kept = yes
+again: single yesno "Again?" when kept = yes
 """
 
 # Each Arrow chunk has its own dictionary (as a CSV reader gives per block), with new
@@ -87,3 +88,18 @@ def test_memo_across_chunks_matches_judging_each_cell(name: str, parts: list[lis
     marked = np.array([v is not None and v.strip() == "N/S" for v in values])
     assert (np.concatenate([a.not_shown, b.not_shown]) == marked).all()
     assert (whole.not_shown == marked).all()
+
+
+def test_columns_judged_alike_share_verdicts() -> None:
+    q = load_text(SPEC, "memo.qlc").questionnaire
+    mapping = DataMapping()
+    plans = plan_layout(q, mapping, ["id", "kept", "count", "share", "again"]).plans
+    memo: dict = {}
+    type_cells(plans["kept"], pa.table({"kept": _column(CHUNKS)}), mapping, memo)
+    type_cells(plans["count"], pa.table({"count": _column(NUMBERS)}), mapping, memo)
+    assert len(memo) == 2  # a code list and a range judge differently
+    # `again` is judged like `kept`: it reuses (and extends) the same verdicts.
+    texts = ["2", "7", None, "98", "1", "zz", "1"]
+    got = type_cells(plans["again"], pa.table({"again": _column([texts[:3], texts[3:]])}), mapping, memo)
+    assert len(memo) == 2
+    _same(got, _plain(plans["again"], texts, mapping))
