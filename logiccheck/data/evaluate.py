@@ -386,6 +386,22 @@ def reads_of(q: Questionnaire, expr: Any, _depth: int = 0) -> list[tuple[str, st
     return out
 
 
+def _names_read(q: Questionnaire) -> set[str]:
+    """The names whose values some condition, derived value or check reads."""
+    out: set[str] = set()
+    for e in q.entries:
+        exprs = [expr for _, expr in e.context if expr is not None] + [x for x in (e.own, e.require) if x is not None]
+        for expr in exprs:
+            for node in n.walk(expr):
+                if isinstance(node, n.Ref):
+                    out.add(node.name)
+                elif isinstance(node, n.Has) and isinstance(node.subject, n.Ref):
+                    out.add(node.subject.name)
+                elif isinstance(node, n.Func):
+                    out.add(node.name)
+    return out
+
+
 class Evaluator:
     """Compiled routing for one questionnaire; `run` evaluates one chunk."""
 
@@ -406,6 +422,7 @@ class Evaluator:
                 self.own[e.index] = c.boolean(e.own)
             if e.kind == "check" and e.require is not None:
                 self.require[e.index] = c.boolean(e.require)
+        self.read = _names_read(q)
 
     def guards_of(self, e: Entry) -> list[Guard]:
         if e.index not in self.guards:
@@ -486,6 +503,8 @@ class Evaluator:
             return
         use = due & c.valid
         env.answered[name] = use
+        if name not in self.read:
+            return  # no condition, derived value or check reads its value
         if c.chosen is not None:
             env.sets[name] = (c.chosen & use[:, None], use, c.plan.options)
         elif c.value is not None:

@@ -158,7 +158,8 @@ class Distinct:
         table = np.empty(len(self.dictionary) + 1, dtype=per_text.dtype)
         table[:-1] = per_text
         table[-1] = null
-        return table[self.index]
+        # `take` with a non-negative intp index is the fastest numpy gather.
+        return np.take(table, self.index)
 
 
 def distinct(arr: pa.Array | pa.ChunkedArray) -> Distinct:
@@ -175,17 +176,28 @@ def distinct(arr: pa.Array | pa.ChunkedArray) -> Distinct:
         if not pa.types.is_string(dictionary.type):
             dictionary = pc.cast(dictionary, pa.string())
         dictionaries.append(dictionary)
-        indices = chunk.indices
-        idx = np.asarray((indices.fill_null(-1) if indices.null_count else indices).to_numpy(zero_copy_only=False))
-        parts.append(np.where(idx < 0, -1, idx + base) if base else idx)
+        parts.append((chunk.indices, base))
         base += len(dictionary)
     if not parts:
-        return Distinct(pa.array([], pa.string()), np.zeros(0, dtype=np.int64))
-    index = np.concatenate(parts) if len(parts) > 1 else parts[0]
-    # -1 (a null cell) indexes the last slot of every per-text table, which `per_cell`
-    # reserves for nulls.
+        return Distinct(pa.array([], pa.string()), np.zeros(0, dtype=np.intp))
+    # A null cell indexes slot `base` (one past the last text), which `per_cell` reserves
+    # for nulls; the index is intp and never negative, so every gather is a plain take.
+    out = [_index_part(indices, offset, base) for indices, offset in parts]
+    index = np.concatenate(out) if len(out) > 1 else out[0]
     dictionary = pa.concat_arrays(dictionaries) if len(dictionaries) > 1 else dictionaries[0]
     return Distinct(dictionary, index)
+
+
+def _index_part(indices: pa.Array, offset: int, null: int) -> np.ndarray:
+    """One chunk's dictionary indices as intp, shifted by `offset`, nulls as `null`."""
+    if indices.null_count:
+        idx = np.asarray(indices.fill_null(null - offset).to_numpy(zero_copy_only=False))
+    else:
+        idx = np.asarray(indices.to_numpy(zero_copy_only=False))
+    idx = idx.astype(np.intp)
+    if offset:
+        idx += offset  # nulls were filled with null - offset, so they land on `null`
+    return idx
 
 
 def _is_text(arr: pa.Array | pa.ChunkedArray) -> bool:
@@ -201,14 +213,21 @@ def _in(trimmed: pa.Array, values: set[str]) -> np.ndarray:
 
 def _marker_masks(d: Distinct, mapping: DataMapping) -> tuple[np.ndarray | None, np.ndarray | None, np.ndarray]:
     """(not_shown, unanswered, blank-per-text) for a column's distinct texts."""
+    is_ns, is_un, is_blank = _marker_masks_distinct(d, mapping)
+    not_shown = d.per_cell(is_ns, False) if is_ns is not None else None
+    unanswered = d.per_cell(is_un, False) if is_un is not None else None
+    return not_shown, unanswered, is_blank
+
+
+def _marker_masks_distinct(d: Distinct, mapping: DataMapping) -> tuple[np.ndarray | None, np.ndarray | None, np.ndarray]:
+    """Per distinct text: (not_shown or None when no such marker is set, unanswered or
+    None likewise, blank)."""
     trimmed = pc.utf8_trim_whitespace(d.dictionary)
     ns = {m.strip() for m in mapping.not_shown}
     un = {m.strip() for m in mapping.unanswered}
     is_ns, is_un = _in(trimmed, ns), _in(trimmed, un)
     is_blank = _in(trimmed, mapping.blank_markers()) | is_ns | is_un
-    not_shown = d.per_cell(is_ns, False) if ns else None
-    unanswered = d.per_cell(is_un, False) if un else None
-    return not_shown, unanswered, is_blank
+    return (is_ns if ns else None), (is_un if un else None), is_blank
 
 
 def _numbers_of(d: Distinct, is_blank: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -260,7 +279,9 @@ def parse_numbers(arr: pa.Array | pa.ChunkedArray, blank: set[str]) -> tuple[np.
     return _numbers_of(d, is_blank)
 
 
-def type_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping) -> Cells:
+def type_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping, memo: dict[tuple, Verdicts] | None = None) -> Cells:
+    """One name's cells in one chunk. `memo`, when given, keeps each column's verdicts per
+    distinct text from chunk to chunk, so a column whose texts repeat is judged once."""
     rows = table.num_rows
     blank = mapping.blank_markers()
     if plan.kind == "note":
@@ -279,26 +300,159 @@ def type_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping) -> Cells:
         present = d.per_cell(~is_blank, False)
         return Cells(plan, present, present.copy(), np.zeros(rows, dtype=np.int8), not_shown=not_shown, unanswered=unanswered)
     if _is_text(arr):
-        # Judge each distinct text once, then spread the verdicts over the cells.
-        d = distinct(arr)
-        not_shown, unanswered, is_blank = _marker_masks(d, mapping)
-        present_d, value_d, parsed_d = _numbers_distinct(d, is_blank)
-        reason_d, valid_d, value_d, nr_d = judge(plan, present_d, value_d, parsed_d)
-        rows = len(d.index)
-        any_bad = bool((present_d & ~valid_d).any())
+        # Judge each distinct text once (and, with a memo, once per run), then spread the
+        # verdicts over the cells: one gather of a packed state byte and one of the value.
+        v, state, value, not_shown, unanswered = _gather(plan, arr, mapping, memo)
+        rows = len(state)
         return Cells(
             plan,
-            d.per_cell(present_d, False),
-            d.per_cell(valid_d, False),
-            d.per_cell(reason_d, OK) if any_bad else np.zeros(rows, dtype=np.int8),
-            d.per_cell(value_d, np.nan),
-            d.per_cell(nr_d, False) if nr_d.any() else None,
+            (state & PRESENT_BIT).view(bool),
+            (state & VALID_BIT) != 0,
+            (state >> REASON_SHIFT).view(np.int8) if v.any_bad else np.zeros(rows, dtype=np.int8),
+            value,
+            (state & NR_BIT) != 0 if v.any_nr else None,
             not_shown=not_shown,
             unanswered=unanswered,
         )
     present, value, parsed = parse_numbers(arr, blank)
     reason, valid, value, nr = judge(plan, present, value, parsed)
     return Cells(plan, present, valid, reason, value, nr)
+
+
+# A cell's verdict packed in one byte: bits for present, valid and non-response, and the
+# reason code above them.
+PRESENT_BIT, VALID_BIT, NR_BIT, REASON_SHIFT = 1, 2, 4, 3
+
+
+# Above this many distinct texts a column's verdicts are not kept from chunk to chunk
+# (a column of free numbers would otherwise grow its memo with every chunk).
+MEMO_TEXTS = 50_000
+
+
+@dataclass
+class Verdicts:
+    """A value column's verdicts per distinct text seen so far (`where`: text → slot)."""
+
+    where: dict[str | None, int]
+    state: np.ndarray  # uint8, packed as PRESENT_BIT | VALID_BIT | NR_BIT | reason << REASON_SHIFT
+    value: np.ndarray  # float64, NaN where no number
+    any_bad: bool
+    any_nr: bool
+    not_shown: np.ndarray | None = None  # bool per text, when not-shown markers are set
+    unanswered: np.ndarray | None = None
+
+
+def verdicts(plan: NamePlan, d: Distinct, mapping: DataMapping) -> Verdicts:
+    """Judge a value column's distinct texts."""
+    is_ns, is_un, is_blank = _marker_masks_distinct(d, mapping)
+    present_d, value_d, parsed_d = _numbers_distinct(d, is_blank)
+    reason_d, valid_d, value_d, nr_d = judge(plan, present_d, value_d, parsed_d)
+    state = (
+        present_d.astype(np.uint8) * PRESENT_BIT
+        | valid_d.astype(np.uint8) * VALID_BIT
+        | nr_d.astype(np.uint8) * NR_BIT
+        | (reason_d.astype(np.uint8) << REASON_SHIFT)
+    ).astype(np.uint8)
+    return Verdicts(
+        {t: i for i, t in enumerate(d.dictionary.to_pylist())},
+        state,
+        np.asarray(value_d, dtype=np.float64),
+        bool((present_d & ~valid_d).any()),
+        bool(nr_d.any()),
+        is_ns,
+        is_un,
+    )
+
+
+def _merge(old: Verdicts, new: Verdicts) -> Verdicts:
+    def cat(a: np.ndarray | None, b: np.ndarray | None) -> np.ndarray | None:
+        return None if a is None or b is None else np.concatenate([a, b])
+
+    base = len(old.where)
+    return Verdicts(
+        {**old.where, **{t: base + i for t, i in new.where.items()}},
+        np.concatenate([old.state, new.state]),
+        np.concatenate([old.value, new.value]),
+        old.any_bad or new.any_bad,
+        old.any_nr or new.any_nr,
+        cat(old.not_shown, new.not_shown),
+        cat(old.unanswered, new.unanswered),
+    )
+
+
+def _positions(plan: NamePlan, dictionary: pa.Array, mapping: DataMapping, memo: dict[tuple, Verdicts]) -> tuple[Verdicts, np.ndarray]:
+    """The column's verdicts and where each text of `dictionary` sits in them; texts not
+    seen before are judged now (a Python dict lookup per text: far cheaper than a
+    pyarrow call on a dictionary of a few texts)."""
+    key = judge_key(plan)
+    v = memo.get(key)
+    if v is None or len(v.where) > MEMO_TEXTS:
+        v = verdicts(plan, Distinct(dictionary, np.zeros(0, dtype=np.intp)), mapping)
+        memo[key] = v
+        return v, np.arange(len(dictionary), dtype=np.intp)
+    texts = dictionary.to_pylist()
+    where = v.where
+    pos = np.array([where.get(t, -1) for t in texts], dtype=np.intp)
+    new = pos < 0
+    if new.any():
+        fresh_texts = [t for t, is_new in zip(texts, new.tolist(), strict=True) if is_new]
+        fresh = verdicts(plan, Distinct(pa.array(fresh_texts, pa.string()), np.zeros(0, dtype=np.intp)), mapping)
+        pos[new] = len(where) + np.arange(len(fresh_texts), dtype=np.intp)
+        v = _merge(v, fresh)
+        memo[key] = v
+    return v, pos
+
+
+def judge_key(plan: NamePlan) -> tuple:
+    """What `judge` reads of a plan: columns with equal keys (a battery of items on one
+    code list) share their verdicts, so a text new to the run is judged once."""
+    strict = plan.entry.kind == "item" and bool(plan.entry.stmt.flags.strict)
+
+    def values(a: np.ndarray | None) -> tuple[float, ...] | None:
+        return None if a is None else tuple(a.tolist())
+
+    return (values(plan.allowed), values(plan.nonresponse), values(plan.global_nr), plan.integer, plan.lo, plan.hi, strict)
+
+
+def _gather(
+    plan: NamePlan, arr: pa.Array | pa.ChunkedArray, mapping: DataMapping, memo: dict[tuple, Verdicts] | None
+) -> tuple[Verdicts, np.ndarray, np.ndarray, np.ndarray | None, np.ndarray | None]:
+    """(verdicts, per-cell state byte, value, not-shown, unanswered) for a text column,
+    Arrow chunk by Arrow chunk (each has its own dictionary)."""
+    memo = memo if memo is not None else {}
+    chunks = arr.chunks if isinstance(arr, pa.ChunkedArray) else [arr]
+    encoded = []
+    for chunk in chunks:
+        if not pa.types.is_dictionary(chunk.type):
+            if not (pa.types.is_string(chunk.type) or pa.types.is_large_string(chunk.type)):
+                chunk = pc.cast(chunk, pa.string())
+            chunk = pc.dictionary_encode(chunk)
+        dictionary = chunk.dictionary
+        if not pa.types.is_string(dictionary.type):
+            dictionary = pc.cast(dictionary, pa.string())
+        v, pos = _positions(plan, dictionary, mapping, memo)
+        encoded.append((pos, chunk.indices))
+    if not encoded:
+        v, _ = _positions(plan, pa.array([], pa.string()), mapping, memo)
+    rows = sum(len(ix) for _, ix in encoded)
+    state = np.empty(rows, dtype=np.uint8)
+    value = np.empty(rows, dtype=np.float64)
+    not_shown = np.empty(rows, dtype=bool) if v.not_shown is not None else None
+    unanswered = np.empty(rows, dtype=bool) if v.unanswered is not None else None
+    start = 0
+    for pos, indices in encoded:
+        # This chunk's verdict tables, in its own dictionary order; the last slot is a
+        # null cell (not present, not valid, no value, no marker).
+        stop = start + len(indices)
+        local = _index_part(indices, 0, len(pos))
+        np.take(np.append(v.state[pos], np.uint8(0)), local, out=state[start:stop])
+        np.take(np.append(v.value[pos], np.nan), local, out=value[start:stop])
+        if not_shown is not None:
+            np.take(np.append(v.not_shown[pos], False), local, out=not_shown[start:stop])
+        if unanswered is not None:
+            np.take(np.append(v.unanswered[pos], False), local, out=unanswered[start:stop])
+        start = stop
+    return v, state, value, not_shown, unanswered
 
 
 def judge(

@@ -21,6 +21,7 @@ from logiccheck.data.frame import (
     Cells,
     Layout,
     NamePlan,
+    Verdicts,
     cell_texts,
     parse_numbers,
     plan_layout,
@@ -121,6 +122,7 @@ class Validator:
         offset = 0
         t_read = t_eval = 0.0
         it = iter(chunks)
+        memo: dict[tuple, Verdicts] = {}  # verdicts per distinct text, by `judge_key`
         while True:
             t0 = time.perf_counter()
             table = next(it, None)
@@ -129,7 +131,7 @@ class Validator:
             if table is None:
                 break
             rows = table.num_rows
-            cells = {name: type_cells(plan, table, self.mapping) for name, plan in layout.plans.items()}
+            cells = {name: type_cells(plan, table, self.mapping, memo) for name, plan in layout.plans.items()}
             state = self.evaluator.run(cells, rows)
             chunk_ids = self._ids(table, offset)
             answered = np.zeros(rows, dtype=np.int32)
