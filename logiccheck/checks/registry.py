@@ -105,7 +105,8 @@ def all_checks() -> dict[str, CheckInfo]:
 
 
 def get(name: str) -> CheckInfo | None:
-    return all_checks().get(name)
+    _load()
+    return _REGISTRY.get(name)
 
 
 def default_severity(name: str) -> Severity:

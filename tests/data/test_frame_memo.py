@@ -10,7 +10,7 @@ import pytest
 
 from logiccheck.data.frame import Cells, judge, parse_numbers, plan_layout, type_cells
 from logiccheck.data.mapping import DataMapping
-from logiccheck.load import load_text
+from logiccheck.loader import load_text
 
 SPEC = """survey memo "Memo"
 
