@@ -108,7 +108,7 @@ def impossible_comparison(ctx: LintContext) -> Iterable[Diagnostic]:
     "code as its plain number (so `x >= 4` is true for 98). Typical under `not`, `!=`, or "
     "an ordering comparison on an item that allows non-response codes. The witness is that "
     "respondent.",
-    why="Fielding tools and analysis scripts read missing values in these ways; where they "
+    why="Fielding tools and analysis scripts read blanks and non-response codes in these ways; where they "
     "disagree with the spec, the export will not match the routing you wrote.",
     bad='used: single yesno "Used?"\nwhy_not: text "Why not?" when used != yes',
     good='used: single yesno "Used?"\nwhy_not: text "Why not?" when used = no',
