@@ -117,6 +117,10 @@ def run_validation(
 def emit_validation(
     result: ValidationResult, fmt: str, color: str, show: int, out: str | None, loaded: Loaded | None = None
 ) -> None:
+    if fmt != "text":
+        # Machine formats go to standard output; the notes go to standard error.
+        for note in result.notes:
+            click.echo(f"logiccheck: note: {note}", err=True)
     if fmt in ("sarif", "junit", "github"):
         from logiccheck.report.machine import emit_findings
 

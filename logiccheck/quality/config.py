@@ -45,6 +45,11 @@ class DuplicateConfig(_Strict):
     # Above this many respondents near-duplicates are skipped with a note: the cost grows
     # with the square of the count (50,000 × 100 items take about half a minute on 2 cores).
     near_max_respondents: int = Field(50_000, ge=2)
+    # Above this much work (pairs × one-hot answer categories) near-duplicates are skipped
+    # with a note: wide exports with many-valued number items make the one-hot matrix
+    # large. The default keeps the check near a minute and a gigabyte on 2 cores
+    # (common practice, no source: measured here, 50,000 × 100 five-point items).
+    near_max_work: float = Field(1.5e12, gt=0)
 
 
 class CarelessConfig(_Strict):
@@ -104,6 +109,7 @@ SOURCES: dict[str, str] = {
     "completeness.partial_from": "AAPOR Standard Definitions, example threshold (from memory)",
     "duplicates.near_threshold": "Kuriakose & Robbins (2016)",
     "duplicates.near_min_items": "common practice, no source",
+    "duplicates.near_max_work": "common practice, no source (a budget measured on this project's benchmark)",
     "duplicates.exact_min_answered": "common practice, no source",
     "careless.pattern_max_period": "common practice, no source",
     "completeness.nonresponse_counts_as_answered": "the issue's default: a non-response code is an answer",

@@ -85,10 +85,17 @@ def run_quality(
     exact = duplicates.duplicate_responses(ids, answers, min_answered=min(dc.exact_min_answered, max(1, answers.shape[1])))
     found += exact
     match = None
+    work = near_duplicate_work(answers)
     if len(frame) > dc.near_max_respondents:
         notes.append(
             f"near-duplicate not checked: {len(frame)} respondents is above "
             f"[quality.duplicates] near_max_respondents = {dc.near_max_respondents} (the cost grows with the square)"
+        )
+    elif work > dc.near_max_work:
+        notes.append(
+            f"near-duplicate not checked: {len(frame)} respondents × {answers.shape[1]} items with many "
+            f"distinct answers is about {work:.1e} units of work, above [quality.duplicates] "
+            f"near_max_work = {dc.near_max_work:.1e}; raise it to run the check anyway"
         )
     elif answers.shape[1] and len(frame) > 1:
         match = duplicates.max_percent_match(
@@ -110,3 +117,11 @@ def run_quality(
     disp = completeness.dispositions(q, state, config.completeness)
     found.sort(key=lambda f: (f.row, f.check))
     return QualityResult(state, found, disp, table, match, notes)
+
+
+def near_duplicate_work(answers: pd.DataFrame) -> float:
+    """Pairs to compare × one-hot width (distinct answers per item, blank included): what
+    the near-duplicate matrix products cost."""
+    n = len(answers)
+    width = sum(int(answers[c].nunique(dropna=False)) for c in answers.columns)
+    return n * (n - 1) / 2 * width

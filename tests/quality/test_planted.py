@@ -57,3 +57,23 @@ def test_validate_reports_the_quality_checks(tmp_path) -> None:  # type: ignore[
         if f["check"] in quality:
             got[f["respondent"]].add(f["check"])
     assert got == expected
+
+
+def test_near_duplicates_over_the_work_budget_are_skipped_with_a_note(tmp_path) -> None:  # type: ignore[no-untyped-def]
+    from logiccheck.quality.config import QualityConfig
+    from logiccheck.quality.run import near_duplicate_work
+
+    export, _frame, _ = build()
+    export.to_csv(tmp_path / "export.csv", index=False)
+    q = load_text(SPEC, "libvisit.qlc").questionnaire
+    data = read_export(tmp_path / "export.csv")
+    small = QualityConfig.model_validate({"duplicates": {"near_max_work": 1.0}})
+    result = run_quality(q, data, config=small)
+    assert not [f for f in result.findings if f.check == "near-duplicate"]
+    assert any("near_max_work" in note for note in result.notes)
+    # Worked by hand: 3 rows, two items with 2 and 3 distinct values (blank counts) →
+    # 3 pairs × 5 one-hot columns.
+    import pandas as pd
+
+    tiny = pd.DataFrame({"a": ["1", "2", "1"], "b": ["1", None, "3"]})
+    assert near_duplicate_work(tiny) == 3 * 5
