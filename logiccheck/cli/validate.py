@@ -52,6 +52,17 @@ def _configured_mapping(spec: str | None) -> DataMapping:
     return model if isinstance(model, DataMapping) else DataMapping()
 
 
+def _apply_check_settings(result: ValidationResult, spec: str) -> None:
+    """`[checks]` of the configuration found above the spec applies to findings too."""
+    from logiccheck.config import ConfigError, config_for
+
+    try:
+        config = config_for(spec)
+    except ConfigError as err:
+        fail(str(err))
+    result.apply_check_settings(config.disabled, config.severity)
+
+
 def _configured_quality(loaded: Loaded) -> QualityConfig:
     from logiccheck.clean.policy import PolicyError, configured_policy
 
@@ -106,7 +117,9 @@ def run_validation(
         result = validate(
             loaded.questionnaire, data, mapping, encoding=encoding, chunk_rows=chunk_rows, keep_cells=True, progress=progress
         )
-        return attach_quality(loaded.questionnaire, result, data, mapping, _configured_quality(loaded), encoding=encoding)
+        result = attach_quality(loaded.questionnaire, result, data, mapping, _configured_quality(loaded), encoding=encoding)
+        _apply_check_settings(result, loaded.questionnaire.file)
+        return result
     except DataReadError as err:
         fail(str(err))
     finally:

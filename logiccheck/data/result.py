@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -52,6 +53,17 @@ class ValidationResult:
             out.sort(key=lambda f: (f.row is not None, f.row or 0))
             self._findings = out
         return self._findings
+
+    def apply_check_settings(self, disabled: set[str], severity: dict[str, Severity]) -> None:
+        """The configuration's `[checks]` table: drop turned-off checks, set severities."""
+        if not disabled and not severity:
+            return
+        self.blocks = [
+            dataclasses.replace(b, severity=severity.get(b.check, b.severity))
+            for b in self.blocks
+            if b.check not in disabled
+        ]
+        self._findings = None
 
     @property
     def finding_count(self) -> int:

@@ -158,3 +158,22 @@ def test_header_only_export(tmp_path: Path) -> None:
     doc = json.loads(res.stdout)
     assert doc["respondents"] == 0 and all(i["expected"] == 0 for i in doc["items"])
     assert any(f["check"] == "missing-column" for f in doc["findings"])
+
+
+def test_configuration_checks_table_applies_to_findings(tmp_path: Path) -> None:
+    import shutil
+
+    root = Path(__file__).resolve().parents[2]
+    spec = tmp_path / "bikeshare.qlc"
+    shutil.copy(root / "specs" / "bikeshare.qlc", spec)
+    export = root / "specs" / "bikeshare_export.csv"
+    plain = json.loads(run("validate", str(spec), "--data", str(export), "--format", "json").stdout)
+    checks = {f["check"] for f in plain["findings"]}
+    assert {"missing-on-path", "check-failed"} <= checks
+    (tmp_path / "logiccheck.toml").write_text('[checks]\n"missing-on-path" = "off"\n"check-failed" = "error"\n')
+    doc = json.loads(run("validate", str(spec), "--data", str(export), "--format", "json").stdout)
+    assert "missing-on-path" not in {f["check"] for f in doc["findings"]}
+    assert {f["severity"] for f in doc["findings"] if f["check"] == "check-failed"} == {"error"}
+    # Everything else is untouched.
+    rest = [f for f in plain["findings"] if f["check"] not in ("missing-on-path", "check-failed")]
+    assert [f for f in doc["findings"] if f["check"] != "check-failed"] == rest
