@@ -207,18 +207,17 @@ class Survey:
             mapping_obj = mapping
         if frame is not None:
             mapping_obj = mapping_obj.model_copy(update={"frame": str(frame)})
-        try:  # the quality checks, as the validate command reports them
-            quality = importlib.import_module("logiccheck.quality.attach")
-            policies = importlib.import_module("logiccheck.clean.policy")
-        except ModuleNotFoundError:
-            quality = None
-        # The quality checks read the cells: keep them, so the export is validated once.
-        raw = data_stage.validate(self.questionnaire, data, mapping_obj, keep_cells=keep_cells or quality is not None)
-        if quality is not None:
-            config = policies.configured_policy(self.path)[1] if self.path is not None else None
-            raw = quality.attach_quality(self.questionnaire, raw, data, mapping_obj, config)
-            if not keep_cells:
-                raw.due = raw.has_value = raw.valid = raw.frame = None
+        # The quality checks, as the validate command reports them; they read the cells,
+        # so keep them and the export is validated once.
+        quality = importlib.import_module("logiccheck.quality.attach")
+        policies = importlib.import_module("logiccheck.clean.policy")
+        raw = data_stage.validate(self.questionnaire, data, mapping_obj, keep_cells=True)
+        config = policies.configured_policy(self.path)[1] if self.path is not None else None
+        raw = quality.attach_quality(self.questionnaire, raw, data, mapping_obj, config)
+        checks = self.config()
+        raw.apply_check_settings(checks.disabled, checks.severity)
+        if not keep_cells:
+            raw.due = raw.has_value = raw.valid = raw.frame = None
         from logiccheck.report.report_data import settings_used
 
         used = settings_used(self.config(), mapping_obj)

@@ -103,3 +103,20 @@ def test_clean_gives_frames_and_keeps_the_input(tmp_path) -> None:
     assert in_memory.outputs == [] and len(in_memory.audit) < len(cleaning.audit)
     html = cleaning._repr_html_()
     assert "output.cells_blanked" in html and "<script" not in html.lower()
+
+
+def test_validate_applies_the_configuration_checks_table(tmp_path) -> None:
+    import shutil
+    from pathlib import Path
+
+    root = Path(__file__).resolve().parents[1]
+    spec = tmp_path / "bikeshare.qlc"
+    shutil.copy(root / "specs" / "bikeshare.qlc", spec)
+    export = root / "specs" / "bikeshare_export.csv"
+    before = logiccheck.load(spec).validate(export).findings
+    assert (before["check"] == "missing-on-path").any()
+    (tmp_path / "logiccheck.toml").write_text('[checks]\n"missing-on-path" = "off"\n"speeder" = "error"\n')
+    after = logiccheck.load(spec).validate(export).findings
+    assert not (after["check"] == "missing-on-path").any()
+    assert set(after.loc[after["check"] == "speeder", "severity"]) == {"error"}
+    assert len(after) == len(before) - int((before["check"] == "missing-on-path").sum())
