@@ -128,7 +128,13 @@ def run_validation(
 
 
 def emit_validation(
-    result: ValidationResult, fmt: str, color: str, show: int, out: str | None, loaded: Loaded | None = None
+    result: ValidationResult,
+    fmt: str,
+    color: str,
+    show: int,
+    out: str | None,
+    loaded: Loaded | None = None,
+    fail_on: str | None = None,
 ) -> None:
     if fmt != "text":
         # Machine formats go to standard output; the notes go to standard error.
@@ -137,7 +143,7 @@ def emit_validation(
     if fmt in ("sarif", "junit", "github"):
         from logiccheck.report.machine import emit_findings
 
-        click.echo(emit_findings(result, fmt, loaded.questionnaire if loaded else None))
+        click.echo(emit_findings(result, fmt, loaded.questionnaire if loaded else None, Severity(fail_on or "error")))
     elif fmt == "json":
         click.echo(validation_json(result))
     elif fmt == "csv":
@@ -206,5 +212,5 @@ def validate_command(
         if out:
             click.echo(f"logiccheck: wrote {path}", err=True)
     else:
-        emit_validation(result, fmt, color, show, out, loaded)
+        emit_validation(result, fmt, color, show, out, loaded, fail_on)
     sys.exit(validation_status(result, fail_on))

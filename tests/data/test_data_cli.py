@@ -177,3 +177,16 @@ def test_configuration_checks_table_applies_to_findings(tmp_path: Path) -> None:
     # Everything else is untouched.
     rest = [f for f in plain["findings"] if f["check"] not in ("missing-on-path", "check-failed")]
     assert [f for f in doc["findings"] if f["check"] != "check-failed"] == rest
+
+
+def test_junit_for_findings_follows_fail_on() -> None:
+    import xml.etree.ElementTree as ET
+
+    root = Path(__file__).resolve().parents[2]
+    args = ("validate", str(root / "specs" / "bikeshare.qlc"), "--data", str(root / "specs" / "bikeshare_export.csv"),
+            "--format", "junit")
+    strict = ET.fromstring(run(*args, "--fail-on", "warning").stdout)
+    default = ET.fromstring(run(*args).stdout)
+    # The demo export has warning-level findings (speeder, near-duplicate, check-failed):
+    # they fail their test cases only when --fail-on warning asks for it.
+    assert int(strict.get("failures")) > int(default.get("failures")) > 0
