@@ -8,7 +8,7 @@ import sys
 import click
 
 from logiccheck.cli.common import color_option, exit_status, fail_on_option, make_console
-from logiccheck.cli.lint import emit, lint_files
+from logiccheck.cli.lint import emit, lint_loaded
 from logiccheck.cli.validate import (
     data_options,
     load_data_mapping,
@@ -19,6 +19,7 @@ from logiccheck.cli.validate import (
 )
 from logiccheck.diagnostics import count_by_severity
 from logiccheck.report.data_text import render_validation
+from logiccheck.report.source import SourceCache
 
 
 @click.command("check")
@@ -42,8 +43,9 @@ def check_command(
     color: str,
 ) -> None:
     """Lint the spec, then validate the export against it; exit status is the worse of the two."""
-    diagnostics, sources = lint_files([spec], solver=not no_solver)
-    loaded = load_spec(spec)
+    loaded = load_spec(spec)  # once, for both the lint and the validation
+    diagnostics = lint_loaded(loaded, spec, solver=not no_solver)
+    sources = SourceCache({spec: loaded.questionnaire.text})
     note = spec_note(loaded)
     mapping = load_data_mapping(map_file, frame, spec)
     result = run_validation(loaded, data, mapping, encoding, chunk_rows, color)

@@ -11,7 +11,7 @@ from logiccheck.checks.runner import STAGE_ORDER, run_checks
 from logiccheck.cli.common import color_option, exit_status, fail, fail_on_option, make_console
 from logiccheck.config import Config, ConfigError, config_for
 from logiccheck.diagnostics import Diagnostic, Severity
-from logiccheck.loader import SpecReadError, load_file
+from logiccheck.loader import Loaded, SpecReadError, load_file
 from logiccheck.report.github import github_text
 from logiccheck.report.junit import junit_text
 from logiccheck.report.lint_json import lint_json
@@ -35,18 +35,28 @@ def lint_files(
     texts: dict[str, str] = {}
     for path in paths:
         try:
-            spec_config = config or config_for(path, config_file)
-        except ConfigError as err:
-            fail(str(err))
-        try:
             loaded = load_file(path)
         except SpecReadError as err:
             fail(str(err))
         texts[path] = loaded.questionnaire.text
-        diagnostics.extend(
-            run_checks(loaded, solver=solver, disable=spec_config.disabled, severity=spec_config.severity)
-        )
+        diagnostics.extend(lint_loaded(loaded, path, solver=solver, config=config, config_file=config_file))
     return diagnostics, SourceCache(texts)
+
+
+def lint_loaded(
+    loaded: Loaded,
+    path: str,
+    *,
+    solver: bool = True,
+    config: Config | None = None,
+    config_file: str | None = None,
+) -> list[Diagnostic]:
+    """Every check on a spec already loaded, with its configuration applied."""
+    try:
+        spec_config = config or config_for(path, config_file)
+    except ConfigError as err:
+        fail(str(err))
+    return run_checks(loaded, solver=solver, disable=spec_config.disabled, severity=spec_config.severity)
 
 
 def emit(

@@ -7,6 +7,7 @@ one), so a stray "12a" becomes an invalid value rather than a silent NaN.
 
 from __future__ import annotations
 
+from collections.abc import Iterator
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -162,12 +163,9 @@ class Distinct:
         return np.take(table, self.index)
 
 
-def distinct(arr: pa.Array | pa.ChunkedArray) -> Distinct:
-    chunks = arr.chunks if isinstance(arr, pa.ChunkedArray) else [arr]
-    dictionaries: list[pa.Array] = []
-    parts: list[np.ndarray] = []
-    base = 0
-    for chunk in chunks:
+def dictionary_chunks(arr: pa.Array | pa.ChunkedArray) -> Iterator[tuple[pa.Array, pa.Array]]:
+    """(string dictionary, indices) per Arrow chunk; each chunk has its own dictionary."""
+    for chunk in arr.chunks if isinstance(arr, pa.ChunkedArray) else [arr]:
         if not pa.types.is_dictionary(chunk.type):
             if not (pa.types.is_string(chunk.type) or pa.types.is_large_string(chunk.type)):
                 chunk = pc.cast(chunk, pa.string())
@@ -175,8 +173,16 @@ def distinct(arr: pa.Array | pa.ChunkedArray) -> Distinct:
         dictionary = chunk.dictionary
         if not pa.types.is_string(dictionary.type):
             dictionary = pc.cast(dictionary, pa.string())
+        yield dictionary, chunk.indices
+
+
+def distinct(arr: pa.Array | pa.ChunkedArray) -> Distinct:
+    dictionaries: list[pa.Array] = []
+    parts: list[np.ndarray] = []
+    base = 0
+    for dictionary, indices in dictionary_chunks(arr):
         dictionaries.append(dictionary)
-        parts.append((chunk.indices, base))
+        parts.append((indices, base))
         base += len(dictionary)
     if not parts:
         return Distinct(pa.array([], pa.string()), np.zeros(0, dtype=np.intp))
@@ -420,18 +426,10 @@ def _gather(
     """(verdicts, per-cell state byte, value, not-shown, unanswered) for a text column,
     Arrow chunk by Arrow chunk (each has its own dictionary)."""
     memo = memo if memo is not None else {}
-    chunks = arr.chunks if isinstance(arr, pa.ChunkedArray) else [arr]
     encoded = []
-    for chunk in chunks:
-        if not pa.types.is_dictionary(chunk.type):
-            if not (pa.types.is_string(chunk.type) or pa.types.is_large_string(chunk.type)):
-                chunk = pc.cast(chunk, pa.string())
-            chunk = pc.dictionary_encode(chunk)
-        dictionary = chunk.dictionary
-        if not pa.types.is_string(dictionary.type):
-            dictionary = pc.cast(dictionary, pa.string())
+    for dictionary, indices in dictionary_chunks(arr):
         v, pos = _positions(plan, dictionary, mapping, memo)
-        encoded.append((pos, chunk.indices))
+        encoded.append((pos, indices))
     if not encoded:
         v, _ = _positions(plan, pa.array([], pa.string()), mapping, memo)
     rows = sum(len(ix) for _, ix in encoded)

@@ -43,6 +43,15 @@ class DrawGroup:
     nodes: list[str] = field(default_factory=list)  # node ids directly inside
     children: list[str] = field(default_factory=list)  # group ids directly inside
 
+    def heading(self) -> str:
+        """`section NAME` / `grid NAME (shuffled)`, and its condition on a second line."""
+        out = f"{self.kind} {self.name}"
+        if self.shuffled:
+            out += " (shuffled)"
+        if self.condition:
+            out += f"\nwhen {self.condition}"
+        return out
+
 
 @dataclass
 class DrawEdge:

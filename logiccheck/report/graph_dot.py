@@ -27,11 +27,7 @@ def _node(node: DrawNode, indent: str) -> str:
 
 
 def _group(drawing: Drawing, group: DrawGroup, indent: str) -> list[str]:
-    title = f"{group.kind} {group.name}"
-    if group.shuffled:
-        title += " (shuffled)"
-    if group.condition:
-        title += f"\nwhen {group.condition}"
+    title = group.heading()
     out = [f"{indent}subgraph {_q('cluster_' + group.id)} {{", f"{indent}  label={_q(title)};"]
     if group.kind == "grid":
         out.append(f'{indent}  style="dashed";')

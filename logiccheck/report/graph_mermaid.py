@@ -26,11 +26,7 @@ def _node(node: DrawNode, indent: str) -> str:
 
 
 def _group(drawing: Drawing, group: DrawGroup, indent: str) -> list[str]:
-    title = f"{group.kind} {group.name}"
-    if group.shuffled:
-        title += " (shuffled)"
-    if group.condition:
-        title += f"\nwhen {group.condition}"
+    title = group.heading()
     out = [f'{indent}subgraph {group.id}["{_text(title)}"]']
     for nid in group.nodes:
         out.append(_node(drawing.nodes[nid], indent + "  "))
