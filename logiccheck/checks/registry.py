@@ -12,9 +12,14 @@ from logiccheck.diagnostics import Diagnostic, Severity
 
 if TYPE_CHECKING:
     from logiccheck.checks.context import LintContext
+    from logiccheck.checks.data_context import DataContext
+    from logiccheck.data.findings import Hits
 
 Stage = Literal["spec", "routing", "data", "quality"]
 Runner = Callable[["LintContext"], Iterable[Diagnostic]]
+# A data or quality check: reads the pipeline's context, returns hits without its name;
+# the data runner stamps the name and severity on them.
+DataRunner = Callable[["DataContext"], Iterable["Hits"]]
 
 # Modules whose import registers checks; the registry is filled on first use.
 CHECK_MODULES = (
@@ -40,6 +45,7 @@ class CheckInfo:
     bad: str
     good: str
     run: Runner | None = None
+    data_run: DataRunner | None = None
 
 
 _REGISTRY: dict[str, CheckInfo] = {}
@@ -84,8 +90,35 @@ def describe(
     return info
 
 
+def data_check(
+    name: str,
+    *,
+    severity: Severity | str,
+    stage: Stage,
+    summary: str,
+    what: str,
+    why: str,
+    bad: str,
+    good: str,
+) -> Callable[[DataRunner], DataRunner]:
+    """Decorator: declare a data or quality check once, with its docs, beside its code.
+
+    The function receives the pipeline's `DataContext` and yields `Hits` (rows, message,
+    item); `checks.data_runner.run_data_checks` stamps the check's name and severity."""
+    if stage not in ("data", "quality"):
+        raise ValueError(f"data_check {name}: stage must be data or quality, not {stage}")
+    info = CheckInfo(name, Severity(severity), stage, summary, what, why, bad, good)
+
+    def wrap(fn: DataRunner) -> DataRunner:
+        _add(dataclasses.replace(info, data_run=fn))
+        return fn
+
+    return wrap
+
+
 def _add(info: CheckInfo) -> None:
-    if info.name in _REGISTRY and _REGISTRY[info.name].run is not info.run:
+    old = _REGISTRY.get(info.name)
+    if old is not None and (old.run is not info.run or old.data_run is not info.data_run):
         raise ValueError(f"check {info.name} is declared twice")
     _REGISTRY[info.name] = info
 
@@ -107,6 +140,15 @@ def all_checks() -> dict[str, CheckInfo]:
 def get(name: str) -> CheckInfo | None:
     _load()
     return _REGISTRY.get(name)
+
+
+def check_info(name: str) -> CheckInfo:
+    """The declared check called `name`; an undeclared name is a programming error."""
+    _load()
+    try:
+        return _REGISTRY[name]
+    except KeyError:
+        raise KeyError(f"no check is declared as {name!r}; declare it with register, data_check or describe") from None
 
 
 def default_severity(name: str) -> Severity:

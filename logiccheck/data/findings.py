@@ -41,6 +41,21 @@ class Finding(BaseModel):
 
 
 @dataclass
+class Hits:
+    """What a data or quality check returns: the rows it flags and why, without its own
+    name or severity (the data runner stamps those, so a misspelt name cannot exist).
+
+    `rows` are 0-based data rows (empty: one file-level finding). `message` is one
+    template for every row (`{value}` is filled with the row's cell text) or one message
+    per row."""
+
+    rows: np.ndarray
+    message: str | list[str]
+    item: str | None = None
+    values: list[str] | None = None  # cell texts aligned with rows
+
+
+@dataclass
 class FindingBlock:
     """Findings sharing check, severity, item and a message template (`{value}` filled in)."""
 
@@ -51,6 +66,12 @@ class FindingBlock:
     rows: np.ndarray  # 0-based global data rows; empty for a file-level finding
     ids: np.ndarray | None = None  # respondent ids (object array of str), aligned with rows
     values: list[str] | None = None  # cell texts, aligned with rows
+    messages: list[str] | None = None  # one message per row, replacing `message`, where a check gives them
+
+    def _message(self, i: int, value: str | None) -> str:
+        if self.messages is not None:
+            return self.messages[i]
+        return self.message.replace("{value}", value or "") if "{value}" in self.message else self.message
 
     def rows_out(self) -> Iterator[tuple[str, str, str | None, int | None, str | None, str | None, str]]:
         """(check, severity, respondent, row, item, value, message) without building records."""
@@ -58,12 +79,10 @@ class FindingBlock:
         if self.rows.size == 0:
             yield (self.check, sev, None, None, self.item, None, self.message)
             return
-        templated = "{value}" in self.message
         ids = self.ids.tolist() if self.ids is not None else [None] * len(self.rows)
         values = self.values if self.values is not None else [None] * len(self.rows)
-        for row, rid, value in zip(self.rows.tolist(), ids, values, strict=True):
-            message = self.message.replace("{value}", value or "") if templated else self.message
-            yield (self.check, sev, rid, row + 1, self.item, value, message)
+        for i, (row, rid, value) in enumerate(zip(self.rows.tolist(), ids, values, strict=True)):
+            yield (self.check, sev, rid, row + 1, self.item, value, self._message(i, value))
 
     def head(self, k: int) -> list[Finding]:
         """The first `k` records only."""
@@ -73,11 +92,10 @@ class FindingBlock:
         if self.rows.size == 0:
             return [Finding(check=self.check, severity=self.severity, item=self.item, message=self.message)]
         out = []
-        templated = "{value}" in self.message
         rows = self.rows if limit is None else self.rows[:limit]
         for i, row in enumerate(rows.tolist()):
             value = self.values[i] if self.values is not None else None
-            message = self.message.replace("{value}", value or "") if templated else self.message
+            message = self._message(i, value)
             # Fields are built here from checked parts, so skip pydantic's validation.
             out.append(
                 Finding.model_construct(
