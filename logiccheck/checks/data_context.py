@@ -41,6 +41,9 @@ class DataContext:
     sample_frame: pd.DataFrame | None = None
     options: dict[str, Any] = field(default_factory=dict)  # e.g. margins, for the checks that use them
     notes: list[str] = field(default_factory=list)  # checks add plain notes (what was not checked, and why)
+    # Results computed once and shared between checks and analyses of one run (e.g. a
+    # scale's statistics feed both `low-reliability` and the "scales" section).
+    memo: dict[str, Any] = field(default_factory=dict)
     _index: dict[str, int] | None = field(default=None, repr=False)
 
     @property
