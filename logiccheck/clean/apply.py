@@ -23,6 +23,7 @@ class CleanOutcome:
     audit: pd.DataFrame
     removed: dict[str, int] = field(default_factory=dict)  # reason (check) -> respondents
     blanked: dict[str, int] = field(default_factory=dict)  # check -> cells
+    rows: np.ndarray | None = None  # 0-based export rows the cleaned frame keeps, in order
 
 
 def _condition_text(q: Questionnaire, item: str) -> str:
@@ -114,7 +115,7 @@ def apply_policy(
     audit = pd.DataFrame(records, columns=AUDIT_COLUMNS)
     if len(audit):
         audit = audit.sort_values(["row", "column"], kind="stable").reset_index(drop=True)
-    return CleanOutcome(cleaned, audit, removed, blanked)
+    return CleanOutcome(cleaned, audit, removed, blanked, np.flatnonzero(kept))
 
 
 def reverse_audit(cleaned: pd.DataFrame, audit: pd.DataFrame) -> pd.DataFrame:

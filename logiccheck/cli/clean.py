@@ -17,6 +17,8 @@ from logiccheck.loader import SpecReadError, load_file
 from logiccheck.quality.completeness import RuleError
 from logiccheck.quality.rates import RatesError
 from logiccheck.quality.route import RouteError
+from logiccheck.report.weights_text import print_weights
+from logiccheck.weights.margins import MarginsError, load_margins
 
 
 @click.command("clean")
@@ -27,9 +29,10 @@ from logiccheck.quality.route import RouteError
 @click.option("--map", "map_file", type=click.Path(dir_okay=False), help="Data mapping (TOML; keys top-level or under [data]).")
 @click.option("--frame", "frame_file", type=click.Path(dir_okay=False), help="Sample frame CSV (column id, optionally email).")
 @click.option("--sample", "sample_file", type=click.Path(dir_okay=False), help="Final outcome of every sampled case, for the outcome rates.")
+@click.option("--margins", "margins_file", type=click.Path(dir_okay=False), help="Population margins (TOML): rake a `weight` column to them.")
 @color_option
 def clean_command(spec: str, data: str, out: str, policy_file: str | None, map_file: str | None,
-                  frame_file: str | None, sample_file: str | None, color: str) -> None:
+                  frame_file: str | None, sample_file: str | None, margins_file: str | None, color: str) -> None:
     """Apply a cleaning policy to an export; write the cleaned file and an audit trail."""
     try:
         loaded = load_file(spec)
@@ -42,9 +45,10 @@ def clean_command(spec: str, data: str, out: str, policy_file: str | None, map_f
         policy, config = load_policy(policy_file) if policy_file else configured_policy(spec)
         outcomes = read_outcomes(Path(sample_file)) if sample_file else None
         mapping = load_mapping(map_file) if map_file else None
+        margins = load_margins(margins_file, loaded.questionnaire) if margins_file else None
         run = clean_export(loaded.questionnaire, Path(data), Path(out), policy, config,
-                           Path(frame_file) if frame_file else None, outcomes, mapping)
-    except (PolicyError, ExportError, RuleError, RatesError, RouteError, MappingError) as err:
+                           Path(frame_file) if frame_file else None, outcomes, mapping, margins)
+    except (PolicyError, ExportError, RuleError, RatesError, RouteError, MappingError, MarginsError) as err:
         fail(str(err))
     console = make_console(color)
     s = run.summary
@@ -61,6 +65,8 @@ def clean_command(spec: str, data: str, out: str, policy_file: str | None, map_f
     rr = s["rates"]
     if rr.get("RR1") is not None:
         console.print(f"  outcome rates ({rr['basis']}): RR1 {rr['RR1']:.3f}, COOP1 {rr['COOP1'] or 0:.3f}")
+    if "weights" in s:
+        print_weights(console, s["weights"])
     if s["repair_hints"]:
         console.print(f"  repair hints for {len(s['repair_hints'])} respondents failing checks (summary.json)")
     if s["output"]["removed"]:

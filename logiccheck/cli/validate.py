@@ -5,6 +5,7 @@ from __future__ import annotations
 import sys
 import time
 from pathlib import Path
+from typing import Any
 
 import click
 from rich.progress import BarColumn, Progress, SpinnerColumn, TextColumn, TimeElapsedColumn
@@ -153,7 +154,36 @@ def emit_validation(
         else:
             click.echo(items_csv(result), nl=False)
     else:
-        render_validation(make_console(color), result, show=show)
+        console = make_console(color)
+        render_validation(console, result, show=show)
+        if "representativeness" in result.sections:
+            from logiccheck.report.weights_text import print_margins
+
+            print_margins(console, result.sections)
+
+
+def _margins(path: str | None, loaded: Loaded) -> Any:
+    if path is None:
+        return None
+    from logiccheck.weights.margins import MarginsError, load_margins
+
+    try:
+        return load_margins(path, loaded.questionnaire)
+    except MarginsError as err:
+        fail(str(err))
+
+
+def _attach_margins(loaded: Loaded, result: ValidationResult, data: str, margins: Any, mapping: DataMapping,
+                    encoding: str | None) -> None:
+    from logiccheck.weights.margins import MarginsError
+    from logiccheck.weights.run import attach_weights
+
+    try:
+        attach_weights(loaded.questionnaire, result, data, margins, mapping=mapping,
+                       config=_configured_quality(loaded), encoding=encoding)
+    except MarginsError as err:
+        fail(str(err))
+    _apply_check_settings(result, loaded.questionnaire.file)
 
 
 def validation_status(result: ValidationResult, fail_on: str | None) -> int:
@@ -183,6 +213,7 @@ def spec_note(loaded: Loaded) -> str | None:
 @data_options
 @click.option("--format", "fmt", type=click.Choice(DATA_FORMATS), default="text", show_default=True)
 @click.option("--out", "out", type=click.Path(), help="With --format csv: write items.csv and findings.csv in this folder; with --format html: the report file.")
+@click.option("--margins", "margins_file", type=click.Path(dir_okay=False), help="Population margins (TOML): the sample against the population, per category.")
 @fail_on_option
 @color_option
 def validate_command(
@@ -195,6 +226,7 @@ def validate_command(
     chunk_rows: int | None,
     fmt: str,
     out: str | None,
+    margins_file: str | None,
     fail_on: str | None,
     color: str,
 ) -> None:
@@ -202,7 +234,10 @@ def validate_command(
     loaded = load_spec(spec)
     note = spec_note(loaded)
     mapping = load_data_mapping(map_file, frame, spec)
+    margins = _margins(margins_file, loaded)
     result = run_validation(loaded, data, mapping, encoding, chunk_rows, color)
+    if margins is not None:
+        _attach_margins(loaded, result, data, margins, mapping, encoding)
     if note:
         click.echo(f"logiccheck: note: {note}", err=True)
     if fmt == "html":

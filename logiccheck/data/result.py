@@ -41,6 +41,7 @@ class ValidationResult:
     unknown_columns: list[str] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)
     source: str | None = None
+    sections: dict[str, Any] = field(default_factory=dict)  # analyses' top-level JSON sections (e.g. margins)
     _findings: list[Finding] | None = field(default=None, repr=False)
 
     @property
@@ -115,4 +116,5 @@ class ValidationResult:
             "findings": [f.to_json() for f in self.findings],
             "dispositions": dict(self.dispositions),
             "summary": self.severity_counts(),
+            **self.sections,
         }
