@@ -11,6 +11,7 @@ from __future__ import annotations
 import json
 import shutil
 import subprocess
+import warnings
 from collections.abc import Sequence
 
 import numpy as np
@@ -51,8 +52,10 @@ def ipfn_rake(cats: Sequence[Sequence[int]], shares: Sequence[Sequence[float]], 
     for agg in aggregates:
         agg.index.name = None
     dims = [[f"v{v}"] for v in range(len(cats))]
-    out = ipfn.ipfn(df, [a.rename_axis(f"v{v}") for v, a in enumerate(aggregates)], dims, weight_col="total",
-                    convergence_rate=1e-15, max_iteration=5000, rate_tolerance=0).iteration()
+    with warnings.catch_warnings():  # the package uses pandas calls that newer pandas deprecates
+        warnings.simplefilter("ignore")
+        out = ipfn.ipfn(df, [a.rename_axis(f"v{v}") for v, a in enumerate(aggregates)], dims, weight_col="total",
+                        convergence_rate=1e-15, max_iteration=5000, rate_tolerance=0).iteration()
     w = out["total"].to_numpy(dtype=float)
     return w / w.mean()
 
