@@ -134,7 +134,7 @@ def _variable(q: Questionnaire, where: str, name: str, given: dict[str, float], 
             raise MarginsError(f"{where}: key `{key}.{label}`: {value!r} is not a positive number; "
                                "leave out a category no one in the population has")
     total = math.fsum(given.values())
-    if abs(total - 1) <= tol:
+    if abs(total - 1) <= tol + 1e-12:  # 0.33 × 3 is 0.99 only up to rounding
         given_as: Literal["shares", "counts"] = "shares"
     elif any(v > 1 for v in given.values()):
         given_as = "counts"
