@@ -122,6 +122,32 @@ def _svg(figure: Any) -> str:
     return inline_svg(figure)
 
 
+def _pct(x: float | None) -> str:
+    return "–" if x is None else f"{100 * x:.1f}%"
+
+
+def _margins(sections: dict[str, Any], chart: bool) -> tuple[dict[str, Any] | None, str]:
+    """The sample-against-population part (with `validate --margins`), and its chart."""
+    rows = sections.get("representativeness")
+    if not rows:
+        return None, ""
+    rates = {(r["variable"], r["category"]): r for r in sections.get("response_rates", [])}
+    weights = sections.get("weights") or {}
+    shown = []
+    for r in rows:
+        rate = rates.get((r["variable"], r["category"]))
+        shown.append({**r, "sample": _pct(r["sample_share"]), "population": _pct(r["population_share"]),
+                      "difference": "–" if r["difference"] is None else f"{100 * r['difference']:+.1f}",
+                      "rate": "–" if rate is None else f"{_pct(rate['response_rate'])} of {rate['frame']}"})
+    svg = ""
+    if chart:
+        from logiccheck.report.margins_chart import margins_chart
+
+        svg = _svg(margins_chart(rows))
+    return {"rows": shown, "fit": list(sections.get("fit", {}).items()), "rates": bool(rates), "weights": weights,
+            "respondents": weights.get("respondents", [])}, svg
+
+
 def report_context(data: ReportData, *, pictures: bool = True, chart: bool = True) -> dict[str, Any]:
     """Everything the templates show, as plain values (no live objects)."""
     q = data.questionnaire
@@ -139,6 +165,7 @@ def report_context(data: ReportData, *, pictures: bool = True, chart: bool = Tru
 
         picture_svgs = [(p.name, _svg(p.figure)) for p in routing_pictures(q, data.diagnostics, legend_every=False)]
     summary = data.findings_summary()
+    margins, margins_svg = _margins(data.sections, chart)
     return {
         "title": q.spec.title or q.spec.name or q.file,
         "spec_file": q.file,
@@ -160,6 +187,8 @@ def report_context(data: ReportData, *, pictures: bool = True, chart: bool = Tru
         "settings": _settings_rows(data.settings),
         "chart_svg": chart_svg,
         "pictures": picture_svgs,
+        "margins": margins,
+        "margins_svg": margins_svg,
     }
 
 

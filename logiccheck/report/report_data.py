@@ -32,6 +32,7 @@ class ReportData:
     dispositions: dict[str, int] = field(default_factory=dict)
     settings: dict[str, Any] = field(default_factory=dict)  # thresholds and policy used
     export: str | None = None  # the export's file name, when there is one
+    sections: dict[str, Any] = field(default_factory=dict)  # analyses' sections (e.g. representativeness)
 
     @property
     def has_data(self) -> bool:
@@ -171,6 +172,7 @@ def from_validation(
         dispositions=_dispositions(getattr(result, "dispositions", None)),
         settings=used,
         export=export,
+        sections=dict(getattr(result, "sections", None) or {}),
     )
 
 
