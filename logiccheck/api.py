@@ -189,11 +189,13 @@ class Survey:
         frame: str | Path | None = None,
         settings: Mapping[str, Any] | None = None,
         keep_cells: bool = False,
+        margins: str | Path | None = None,
     ) -> Validation:
         """Run the data checks on an export (a file path or a DataFrame).
 
         `mapping` is a mapping TOML path or a `logiccheck.data.DataMapping`; `frame` a
-        sample-frame CSV; `keep_cells=True` keeps the respondent × item route arrays on
+        sample-frame CSV; `margins` a margins TOML (the sample against the population:
+        `.raw.sections["representativeness"]`, `["fit"]`); `keep_cells=True` keeps the respondent × item route arrays on
         `.raw` (e.g. `.raw.item_states("trips")`). Raises `logiccheck.data.DataReadError` /
         `MappingError` for bad input.
         """
@@ -214,6 +216,10 @@ class Survey:
         raw = data_stage.validate(self.questionnaire, data, mapping_obj, keep_cells=True)
         config = policies.configured_policy(self.path)[1] if self.path is not None else None
         raw = quality.attach_quality(self.questionnaire, raw, data, mapping_obj, config)
+        if margins is not None:
+            weights = importlib.import_module("logiccheck.weights.run")
+            chosen = importlib.import_module("logiccheck.weights.margins").load_margins(margins, self.questionnaire)
+            weights.attach_weights(self.questionnaire, raw, data, chosen, mapping=mapping_obj, config=config)
         checks = self.config()
         raw.apply_check_settings(checks.disabled, checks.severity)
         if not keep_cells:
@@ -239,12 +245,15 @@ class Survey:
         policy: str | Path | Mapping[str, Any] | Any | None = None,
         out: str | Path | None = None,
         frame: str | Path | None = None,
+        margins: str | Path | None = None,
     ) -> Cleaning:
         """Apply a cleaning policy to an export; the cleaned frame and audit as DataFrames.
 
         `policy`: a policy TOML path, a `[clean]` table as a dict, a `CleanPolicy`, or None
         for the configuration found above the spec. `out`: a folder for the cleaned file,
-        audit and summary (None: kept in memory only). The input is never modified.
+        audit and summary (None: kept in memory only). `margins`: a margins TOML; the
+        cleaned frame gains a raked `weight` column and `.summary["weights"]` its
+        diagnostics. The input is never modified.
         """
         run = importlib.import_module("logiccheck.clean.run")
         policies = importlib.import_module("logiccheck.clean.policy")
@@ -268,8 +277,12 @@ class Survey:
                 export = Path(data)
             target = Path(out) if out is not None else Path(tmp) / "out"
             target.mkdir(parents=True, exist_ok=True)
+            chosen_margins = None
+            if margins is not None:
+                margins_module = importlib.import_module("logiccheck.weights.margins")
+                chosen_margins = margins_module.load_margins(margins, self.questionnaire)
             done = run.clean_export(self.questionnaire, export, target, chosen, quality,
-                                    sample_frame=Path(frame) if frame is not None else None)
+                                    sample_frame=Path(frame) if frame is not None else None, margins=chosen_margins)
         return Cleaning(done, kept=out is not None)
 
     def picture(self, fmt: str = "svg") -> bytes:

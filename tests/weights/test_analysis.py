@@ -89,3 +89,21 @@ def test_a_missing_base_column_stops_the_run(tmp_path: Path) -> None:
     spec, export, margins, _ = make(tmp_path, n=60, margins=MARGINS + 'base = "dw"\n')
     ran = run_cli("validate", str(spec), "--data", str(export), "--margins", str(margins))
     assert ran.returncode == 2 and "key `weights.base`: the export has no column `dw`" in ran.stderr
+
+
+def test_notebook_api_validate_and_clean_with_margins(tmp_path: Path) -> None:
+    import logiccheck
+
+    spec, export, margins, _ = make(tmp_path, n=150)
+    survey = logiccheck.load(spec)
+    v = survey.validate(export, margins=margins)
+    cli = json.loads(run_cli("validate", str(spec), "--data", str(export), "--margins", str(margins),
+                             "--format", "json").stdout)
+    assert v.raw.sections["representativeness"] == cli["representativeness"] and v.raw.sections["fit"] == cli["fit"]
+    c = survey.clean(export, margins=margins)
+    on_cli = run_cli("clean", str(spec), "--data", str(export), "--margins", str(margins), "--out", str(tmp_path / "o"))
+    assert on_cli.returncode == 0
+    file = pd.read_csv(tmp_path / "o" / "library.cleaned.csv", dtype=str, keep_default_na=False)
+    assert c.cleaned["weight"].tolist() == file["weight"].tolist()
+    assert c.summary["weights"] == json.loads((tmp_path / "o" / "summary.json").read_text())["weights"] | {
+        "margins_file": c.summary["weights"]["margins_file"]}
