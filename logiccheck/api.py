@@ -70,6 +70,11 @@ class Validation:
         return dict(self.data.dispositions)
 
     @property
+    def representativeness(self) -> pd.DataFrame:
+        """With margins: per category, the sample share against the population share."""
+        return pd.DataFrame(self.data.sections.get("representativeness", []))
+
+    @property
     def respondents(self) -> int | None:
         return self.data.respondents
 

@@ -122,15 +122,13 @@ def _svg(figure: Any) -> str:
     return inline_svg(figure)
 
 
-def _pct(x: float | None) -> str:
-    return "–" if x is None else f"{100 * x:.1f}%"
-
-
 def _margins(sections: dict[str, Any], chart: bool) -> tuple[dict[str, Any] | None, str]:
     """The sample-against-population part (with `validate --margins`), and its chart."""
     rows = sections.get("representativeness")
     if not rows:
         return None, ""
+    from logiccheck.report.weights_text import percent as _pct
+
     rates = {(r["variable"], r["category"]): r for r in sections.get("response_rates", [])}
     weights = sections.get("weights") or {}
     shown = []

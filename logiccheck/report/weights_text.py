@@ -10,7 +10,7 @@ from rich.markup import escape
 from rich.table import Table
 
 
-def _pct(x: float | None) -> str:
+def percent(x: float | None) -> str:
     return "–" if x is None else f"{100 * x:.1f}%"
 
 
@@ -34,11 +34,11 @@ def print_margins(console: Console, sections: dict[str, Any]) -> None:
         diff = r["difference"]
         style = "red" if diff is not None and abs(diff) >= 0.05 else ""
         cells = [escape(r["variable"]) if r["variable"] != last else "", escape(r["category"]), str(r["sample_count"]),
-                 _pct(r["sample_share"]), _pct(r["population_share"]),
+                 percent(r["sample_share"]), percent(r["population_share"]),
                  f"[{style}]{_signed(diff)}[/{style}]" if style else _signed(diff)]
         if rates:
             rr = rates.get((r["variable"], r["category"]))
-            cells.append("–" if rr is None else f"{_pct(rr['response_rate'])} of {rr['frame']}")
+            cells.append("–" if rr is None else f"{percent(rr['response_rate'])} of {rr['frame']}")
         table.add_row(*cells)
         last = r["variable"]
     console.print()

@@ -10,7 +10,18 @@ import numpy as np
 from logiccheck.checks.data_context import DataContext
 from logiccheck.checks.registry import data_check
 from logiccheck.data.findings import Hits
-from logiccheck.weights.compute import prepare
+from logiccheck.weights.compute import Prepared, prepare
+from logiccheck.weights.margins import MarginsError
+
+
+def _prepared(ctx: DataContext) -> Prepared | None:
+    """The shared preparation; margins that do not fit the export are the `weights`
+    analysis's error to raise (the command stops with exit 2), not a check's."""
+    try:
+        return prepare(ctx)
+    except MarginsError:
+        return None
+
 
 _SPEC = 'sample district single { central = 1 "Central", east = 2 "East", west = 3 "West" }'
 
@@ -31,7 +42,7 @@ _SPEC = 'sample district single { central = 1 "Central", east = 2 "East", west =
     good=f"{_SPEC}\n# export row 7: district = 2 (east), filled in from the sample file",
 )
 def weight_missing(ctx: DataContext) -> Iterator[Hits]:
-    p = prepare(ctx)
+    p = _prepared(ctx)
     if p is None:
         return
     for var in p.margins.variables:
@@ -61,7 +72,7 @@ def weight_missing(ctx: DataContext) -> Iterator[Hits]:
     'sample district single { central = 1 "Central", outer = 2 "East or West" }',
 )
 def sparse_cell(ctx: DataContext) -> Iterator[Hits]:
-    p = prepare(ctx)
+    p = _prepared(ctx)
     if p is None:
         return
     threshold = p.margins.settings.min_cell
