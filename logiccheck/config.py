@@ -114,22 +114,29 @@ def find_config(start: str | Path) -> Path | None:
     return None
 
 
-def _read_toml(path: Path) -> dict[str, Any]:
+def read_toml(path: Path, what: str = "configuration", error: type[ValueError] | None = None) -> dict[str, Any]:
+    """A TOML file as a dict; a missing, unreadable or malformed file raises `error`
+    (default `ConfigError`) with one line naming the file and `what` it should be."""
+    error = error or ConfigError
     try:
         raw = path.read_bytes()
+    except FileNotFoundError:
+        raise error(f"{path}: no such {what} file") from None
     except OSError as err:
-        raise ConfigError(f"{path}: cannot read the configuration ({err.strerror})") from None
+        raise error(f"{path}: cannot read the {what} ({err.strerror})") from None
     try:
         return tomllib.loads(raw.decode("utf-8"))
     except UnicodeDecodeError:
-        raise ConfigError(f"{path}: not UTF-8 text; save the configuration as UTF-8") from None
+        raise error(f"{path}: not UTF-8 text; save the {what} as UTF-8") from None
     except tomllib.TOMLDecodeError as err:
-        raise ConfigError(f"{path}: not valid TOML ({err})") from None
+        raise error(f"{path}: not valid TOML ({err})") from None
+
+
 
 
 def _pyproject_table(path: Path) -> dict[str, Any] | None:
     try:
-        data = _read_toml(path)
+        data = read_toml(path)
     except ConfigError:
         return None  # someone else's broken pyproject is not our configuration
     table = data.get("tool", {}).get("logiccheck") if isinstance(data.get("tool"), dict) else None
@@ -200,12 +207,12 @@ def load_config(path: str | Path, checks: list[str] | None = None) -> Config:
     if not path.is_file():
         raise ConfigError(f"{path}: no such configuration file; give a logiccheck.toml or pyproject.toml")
     if path.name == PYPROJECT:
-        table = _read_toml(path).get("tool", {}).get("logiccheck")
+        table = read_toml(path).get("tool", {}).get("logiccheck")
         if not isinstance(table, dict):
             raise ConfigError(f"{path}: has no [tool.logiccheck] table")
         where = f"{path} [tool.logiccheck]"
     else:
-        table = _read_toml(path)
+        table = read_toml(path)
         where = str(path)
     config = parse_config(table, where, checks)
     config.source = str(path)

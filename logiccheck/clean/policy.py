@@ -3,18 +3,13 @@ entry point."""
 
 from __future__ import annotations
 
-import sys
 from pathlib import Path
 from typing import Any, Literal
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator
 
+from logiccheck.config import read_toml
 from logiccheck.quality.config import QualityConfig
-
-if sys.version_info >= (3, 11):
-    import tomllib
-else:  # pragma: no cover
-    import tomli as tomllib
 
 # Checks whose flagged respondents a policy may remove.
 RESPONDENT_CHECKS = (
@@ -92,14 +87,7 @@ def load_policy(path: str | Path | None) -> tuple[CleanPolicy, QualityConfig]:
     if path is None:
         return CleanPolicy(), QualityConfig()
     path = Path(path)
-    try:
-        doc: dict[str, Any] = tomllib.loads(path.read_text(encoding="utf-8"))
-    except FileNotFoundError:
-        raise PolicyError(f"{path}: no such policy file") from None
-    except (OSError, UnicodeDecodeError) as err:
-        raise PolicyError(f"{path}: cannot read ({err})") from None
-    except tomllib.TOMLDecodeError as err:
-        raise PolicyError(f"{path}: not valid TOML ({err})") from None
+    doc: dict[str, Any] = read_toml(path, "policy", PolicyError)
     doc = doc.get("tool", {}).get("logiccheck", doc)
     unknown = sorted(set(doc) - {"clean", "quality", "data", "lint", "ci", "report"})
     if unknown:

@@ -11,14 +11,9 @@ from typing import Any, Literal
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator
 
-from logiccheck.config import _did_you_mean, _pydantic_message
+from logiccheck.config import _did_you_mean, _pydantic_message, read_toml
 from logiccheck.model import nodes as n
 from logiccheck.model.questionnaire import Questionnaire
-
-try:
-    import tomllib
-except ModuleNotFoundError:  # Python < 3.11
-    import tomli as tomllib  # type: ignore[no-redef]
 
 # Shares may be rounded in their published source; within this of 1 they are rescaled to
 # sum to exactly 1 (common practice, no source).
@@ -166,12 +161,4 @@ def resolve_margins(raw: dict[str, Any], q: Questionnaire, where: str) -> Margin
 def load_margins(path: str | Path, q: Questionnaire) -> Margins:
     """Read and resolve a margins file; raises `MarginsError` with one line."""
     p = Path(path)
-    try:
-        raw = tomllib.loads(p.read_text(encoding="utf-8"))
-    except FileNotFoundError:
-        raise MarginsError(f"{p}: no such margins file") from None
-    except (OSError, UnicodeDecodeError) as err:
-        raise MarginsError(f"{p}: cannot read the margins file: {err}") from None
-    except tomllib.TOMLDecodeError as err:
-        raise MarginsError(f"{p}: not valid TOML: {err}") from None
-    return resolve_margins(raw, q, str(p))
+    return resolve_margins(read_toml(p, "margins", MarginsError), q, str(p))
