@@ -9,6 +9,7 @@ from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
+import pandas as pd
 
 from logiccheck.weights.margins import Margins, MarginsError, Variable
 from logiccheck.weights.rake import RakeResult, effective_n, kish_deff, rake
@@ -96,16 +97,10 @@ def prepare(ctx: DataContext) -> Prepared | None:
 
 
 def _positive_numbers(text: np.ndarray) -> np.ndarray:
-    out = np.full(len(text), np.nan)
-    for i, cell in enumerate(text):
-        if cell is None:
-            continue
-        try:
-            v = float(str(cell).strip())
-        except ValueError:
-            continue
-        if np.isfinite(v) and v > 0:
-            out[i] = v
+    """Cells as numbers; NaN where blank, not a number, not finite or not above 0."""
+    values = pd.to_numeric(pd.Series(text, dtype=object).astype("string").str.strip(), errors="coerce")
+    out = values.to_numpy(dtype=float, na_value=np.nan)
+    out[~np.isfinite(out) | (out <= 0)] = np.nan
     return out
 
 
