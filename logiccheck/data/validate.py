@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import difflib
 import time
 from collections.abc import Callable, Iterable
 from pathlib import Path
@@ -32,6 +31,7 @@ from logiccheck.data.readers import DEFAULT_CHUNK_ROWS, open_export, prefetch, r
 from logiccheck.data.result import TABLE_COLUMNS, ValidationResult
 from logiccheck.diagnostics import Severity
 from logiccheck.model.questionnaire import Questionnaire
+from logiccheck.suggest import closest, did_you_mean
 
 Progress = Callable[[int, int], None]  # (rows done, bytes done)
 
@@ -51,6 +51,7 @@ def validate(
     chunk_rows: int | None = DEFAULT_CHUNK_ROWS,
     keep_cells: bool = True,
     stream: bool | None = None,
+    delimiter: str | None = None,
     progress: Progress | None = None,
     timings: dict[str, float] | None = None,
 ) -> ValidationResult:
@@ -62,10 +63,10 @@ def validate(
     """
     mapping = mapping or DataMapping()
     if isinstance(source, (str, Path)):
-        export = open_export(source, encoding=encoding, chunk_rows=chunk_rows, stream=stream)
+        export = open_export(source, encoding=encoding, chunk_rows=chunk_rows, stream=stream, delimiter=delimiter)
         header, chunks, name = export.columns, prefetch(export.chunks), str(export.path)
     else:
-        table = source if isinstance(source, pa.Table) else _table_from_frame(source)
+        table = source if isinstance(source, pa.Table) else table_from_frame(source)
         header = list(table.column_names)
         chunk_rows = chunk_rows or rows_for(len(header))
         chunks = (table.slice(s, chunk_rows) for s in range(0, max(table.num_rows, 1), chunk_rows))
@@ -77,7 +78,7 @@ def validate_frame(q: Questionnaire, frame: pd.DataFrame, mapping: DataMapping |
     return validate(q, frame, mapping)
 
 
-def _table_from_frame(frame: pd.DataFrame) -> pa.Table:
+def table_from_frame(frame: pd.DataFrame) -> pa.Table:
     """A DataFrame as text columns (numbers keep their own type), blanks as null."""
     cols = {}
     for c in frame.columns:
@@ -270,14 +271,17 @@ class Validator:
             if plan is not None and plan.kind == "multi" and name in unknown and self.mapping.multi.layout == "columns":
                 hint = f" (the export has one column `{name}`: if it lists the chosen codes, set `layout = \"delimited\"` under [data.multi])"
             else:
-                close = difflib.get_close_matches(col, self.layout.unknown, n=1, cutoff=0.75)
+                close = closest(col, self.layout.unknown, cutoff=0.75)
                 if close:
-                    hint = f" (is `{close[0]}` the same? map it under [data.columns]: {name} = \"{close[0]}\")"
+                    key = name
+                    if plan is not None and plan.kind == "multi" and col in plan.columns:
+                        # One option column: its own key, so the other options keep theirs.
+                        key = self.mapping.multi.column.format(name=name, value=plan.options[plan.columns.index(col)])
+                    hint = f" (is `{close}` the same? map it under [data.columns]: {key} = \"{close}\")"
             msg = f"the export has no column `{col}` for `{name}`; every answer to it counts as missing{hint}"
             out.append(FindingBlock("missing-column", _sev("missing-column"), name, msg, empty))
         for col in self.layout.unknown:
-            close = difflib.get_close_matches(col, missing_cols, n=1, cutoff=0.75)
-            hint = f"; did you mean `{close[0]}`?" if close else ""
+            hint = did_you_mean(col, missing_cols, cutoff=0.75)
             msg = f"column `{col}` is not in the spec (no item, grid row or sample variable of that name); it is ignored{hint}"
             out.append(FindingBlock("unknown-column", _sev("unknown-column"), None, msg, empty))
         return out
