@@ -431,4 +431,4 @@ def cells_frame(table: pa.Table) -> pd.DataFrame:
         {c: ["" if v is None else v for v in column_texts(table, c)] for c in table.column_names},
         columns=list(table.column_names),
         dtype=object,
-    )
+    ).astype(str)

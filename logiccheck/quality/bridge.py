@@ -1,17 +1,14 @@
-"""Between the data stage and the quality stage: a route state from a `ValidationResult`,
-and quality findings as data-stage `Finding` records (one list for every reporter)."""
+"""Between the data stage and the quality stage: a route state from a `ValidationResult`."""
 
 from __future__ import annotations
 
 import numpy as np
 import pandas as pd
 
-from logiccheck.data.findings import Finding as DataFinding
 from logiccheck.data.mapping import DataMapping
 from logiccheck.data.result import ValidationResult
 from logiccheck.data.validate import validate
 from logiccheck.model.questionnaire import Questionnaire
-from logiccheck.quality.findings import Finding
 from logiccheck.quality.route import RouteError, RouteState, item_columns
 
 
@@ -48,12 +45,3 @@ def route_state(q: Questionnaire, frame: pd.DataFrame, id_column: str = "id") ->
     export in the default layout (DESIGN §6), by the data stage's evaluator."""
     require_id(frame, id_column)
     return state_from_validation(q, validate(q, frame, DataMapping(id=id_column), keep_cells=True))
-
-
-def as_data_findings(findings: list[Finding]) -> list[DataFinding]:
-    """Quality findings in the data stage's record shape (1-based rows, values as text)."""
-    return [
-        DataFinding(check=f.check, severity=f.severity, respondent=f.respondent, row=f.row + 1, item=f.item,
-                    value=None if f.value is None else str(f.value), message=f.message)
-        for f in findings
-    ]
