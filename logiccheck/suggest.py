@@ -8,8 +8,13 @@ from collections.abc import Iterable
 
 def closest(word: str, options: Iterable[str], cutoff: float = 0.6) -> str | None:
     """The known name most like `word`, or None when none is close enough."""
-    found = difflib.get_close_matches(word, list(options), n=1, cutoff=cutoff)
-    return found[0] if found else None
+    best, score = None, cutoff
+    for option in options:
+        # difflib's ratio depends on argument order; take the kinder of the two.
+        r = max(difflib.SequenceMatcher(None, word, option).ratio(), difflib.SequenceMatcher(None, option, word).ratio())
+        if r >= score and (best is None or r > score):
+            best, score = option, r
+    return best
 
 
 def did_you_mean(word: str, options: Iterable[str], cutoff: float = 0.6) -> str:

@@ -113,7 +113,8 @@ def apply_policy(
             cells = frame[col].to_numpy(dtype=object)
             nonempty = np.array([str(c).strip() not in markers for c in cells], dtype=bool)
             todo: list[tuple[np.ndarray, dict[tuple[int, str], tuple[str, str]], str, str]] = []
-            if policy.blank_out_of_path:
+            # An item whose routing reads a missing column is not judged, so not blanked.
+            if policy.blank_out_of_path and item not in result.unjudged:
                 cond = _condition_text(q, item)
                 why = f"the routing did not ask {item}" + (f" (condition: {cond})" if cond else "")
                 todo.append((nonempty & ~state.due[:, j], off_route, "out-of-path", why))

@@ -39,6 +39,8 @@ class ValidationResult:
     frame: pd.DataFrame | None = None  # the typed frame (values where valid, NaN otherwise)
     missing_columns: list[tuple[str, str]] = field(default_factory=list)
     unknown_columns: list[str] = field(default_factory=list)
+    # Items whose routing reads an item with a missing column → those items: not judged.
+    unjudged: dict[str, list[str]] = field(default_factory=dict)
     notes: list[str] = field(default_factory=list)
     source: str | None = None
     _findings: list[Finding] | None = field(default=None, repr=False)

@@ -13,7 +13,7 @@ import pyarrow.compute as pc
 
 from logiccheck.data import causes
 from logiccheck.data.dispositions import answered_share, default_dispositions, tally
-from logiccheck.data.evaluate import ChunkState, Evaluator
+from logiccheck.data.evaluate import ChunkState, Evaluator, reads_of
 from logiccheck.data.findings import FindingBlock
 from logiccheck.data.frame import (
     REASON_TEXT,
@@ -102,6 +102,33 @@ class Validator:
         self.gates = np.array([q.symbols[i].stmt.flags.gate for i in self.items], dtype=bool)
         self.stop_names = [e.name for e in q.entries if e.kind == "stop"]
         self.stop_index = {e.index: e.name for e in q.entries if e.kind == "stop"}
+        self.unjudged = self._unjudged()
+
+    def _unjudged(self) -> dict[str, list[str]]:
+        """Items whose routing reads, directly or through other items and derived values,
+        an item with a missing column → the missing items. Their conditions are unknown,
+        so their answers are judged neither off-route nor missing (reported once, as
+        `missing-column`)."""
+        tainted: dict[str, set[str]] = {name: {name} for name, _ in self.layout.missing if name != "id"}
+        out: dict[str, list[str]] = {}
+        if not tainted:
+            return out
+        for e in self.q.entries:
+            if e.kind == "let":
+                exprs = [e.own] if e.own is not None else []
+            elif e.kind == "item":
+                exprs = [g.expr for g in self.evaluator.guards_of(e) if g.expr is not None]
+            else:
+                continue
+            roots: set[str] = set()
+            for expr in exprs:
+                for _how, name in reads_of(self.q, expr):
+                    roots |= tainted.get(name, set())
+            if roots:
+                tainted[e.name] = tainted.get(e.name, set()) | roots
+                if e.kind == "item" and e.name in self.layout.plans and not self.layout.plans[e.name].missing:
+                    out[e.name] = sorted(roots)
+        return out
 
     def run(
         self,
@@ -148,7 +175,10 @@ class Validator:
                 n_d = int(np.count_nonzero(d))
                 n_p = int(np.count_nonzero(c.present))
                 n_valid = int(np.count_nonzero(c.valid))
-                counts[j] += (n_d, n_p, n_p - n_on, n_d - n_on, n_p - n_valid)
+                if item in self.unjudged:
+                    counts[j] += (n_d, n_p, 0, 0, n_p - n_valid)  # routing unknown: not judged
+                else:
+                    counts[j] += (n_d, n_p, n_p - n_on, n_d - n_on, n_p - n_valid)
                 answered += on
                 n_due += d
                 if self.gates[j]:
@@ -225,6 +255,7 @@ class Validator:
             measures=measure_frame,
             missing_columns=list(layout.missing),
             unknown_columns=list(layout.unknown),
+            unjudged=dict(self.unjudged),
             source=source,
         )
         if self.keep:
@@ -271,14 +302,19 @@ class Validator:
             if plan is not None and plan.kind == "multi" and name in unknown and self.mapping.multi.layout == "columns":
                 hint = f" (the export has one column `{name}`: if it lists the chosen codes, set `layout = \"delimited\"` under [data.multi])"
             else:
-                close = closest(col, self.layout.unknown, cutoff=0.75)
+                key, cutoff = name, 0.75
+                if plan is not None and plan.kind == "multi" and col in plan.columns:
+                    # One option column: its own key, so the other options keep theirs; option
+                    # columns are often shortened, so a looser match is still worth naming.
+                    key = self.mapping.multi.column.format(name=name, value=plan.options[plan.columns.index(col)])
+                    cutoff = 0.6
+                close = closest(col, self.layout.unknown, cutoff=cutoff)
                 if close:
-                    key = name
-                    if plan is not None and plan.kind == "multi" and col in plan.columns:
-                        # One option column: its own key, so the other options keep theirs.
-                        key = self.mapping.multi.column.format(name=name, value=plan.options[plan.columns.index(col)])
                     hint = f" (is `{close}` the same? map it under [data.columns]: {key} = \"{close}\")"
-            msg = f"the export has no column `{col}` for `{name}`; every answer to it counts as missing{hint}"
+            after = sorted(i for i, roots in self.unjudged.items() if name in roots)
+            shown = ", ".join(f"`{i}`" for i in after[:8]) + (f" and {len(after) - 8} more" if len(after) > 8 else "")
+            depends = f"; not judged for routing, as their conditions read it: {shown}" if after else ""
+            msg = f"the export has no column `{col}` for `{name}`; every answer to it counts as missing{depends}{hint}"
             out.append(FindingBlock("missing-column", _sev("missing-column"), name, msg, empty))
         for col in self.layout.unknown:
             hint = did_you_mean(col, missing_cols, cutoff=0.75)
@@ -308,7 +344,8 @@ class Validator:
                 vals = cell_texts(table, plan, rows, self.mapping)
                 msg = f"`{item}` = {{value}} {REASON_TEXT[reason]}{self._allowed(plan)}"
                 out.append(FindingBlock("invalid-value", _sev("invalid-value"), item, msg, rows + offset, ids[rows], vals))
-        blocked = state.blocked.get(item)
+        judged = item not in self.unjudged
+        blocked = state.blocked.get(item) if judged else None
         if blocked is not None:
             guards = self.evaluator.guards_of(plan.entry)
             key = np.column_stack([blocked.reason.astype(np.float64), blocked.keys])
@@ -328,7 +365,7 @@ class Validator:
                 out.append(
                     FindingBlock(check, _sev(check), item, msg, rows + offset, ids[rows], [vals_all[i] for i in sel])
                 )
-        if plan.kind != "note" and not plan.missing and any_missing:
+        if plan.kind != "note" and not plan.missing and any_missing and judged:
             missing = due & ~c.present
             if missing.any():
                 rows = np.flatnonzero(missing)
