@@ -9,6 +9,7 @@ import numpy as np
 import pandas as pd
 
 from logiccheck.clean.policy import CleanPolicy
+from logiccheck.data.validate import AFTER_STOP, CHECK_FAILED, INVALID_VALUE, OUT_OF_PATH
 from logiccheck.model.questionnaire import Questionnaire
 from logiccheck.pipeline.run import PipelineResult
 
@@ -38,7 +39,7 @@ def _condition_text(q: Questionnaire, item: str) -> str:
 
 
 # The data stage's checks whose findings name an answer a blanking policy removes.
-_OFF_ROUTE = ("out-of-path", "after-stop")
+_OFF_ROUTE = (OUT_OF_PATH.name, AFTER_STOP.name)
 
 
 def _reasons(result: PipelineResult, checks: tuple[str, ...]) -> dict[tuple[int, str], tuple[str, str]]:
@@ -64,7 +65,7 @@ def _removals(result: PipelineResult, policy: CleanPolicy) -> dict[int, tuple[st
     for r, rid in enumerate(state.ids):
         first_of_id.setdefault(rid, r)
     for f in result.findings:
-        if f.check not in drops or f.row is None or f.check == "check-failed":
+        if f.check not in drops or f.row is None or f.check == CHECK_FAILED.name:
             continue
         r = f.row - 1
         if r in out:
@@ -77,10 +78,10 @@ def _removals(result: PipelineResult, policy: CleanPolicy) -> dict[int, tuple[st
         if f.check == "near-duplicate" and result.match is not None and result.match.partner[r] > r:
             continue
         out[r] = (f.check, f"respondent removed by policy ({f.check}): {f.message}")
-    if "check-failed" in drops:
+    if CHECK_FAILED.name in drops:
         for name, failed in state.checks_failed.items():
             for r in np.flatnonzero(failed):
-                out.setdefault(int(r), ("check-failed", f"respondent removed by policy (check-failed): fails check {name}"))
+                out.setdefault(int(r), (CHECK_FAILED.name, f"respondent removed by policy (check-failed): fails check {name}"))
     if policy.keep_dispositions is not None:
         keep = set(policy.keep_dispositions)
         for r, d in enumerate(result.disposition.tolist()):
@@ -105,7 +106,7 @@ def apply_policy(
     kept[list(removed_rows)] = False
     blanked: dict[str, int] = {}
     off_route = _reasons(result, _OFF_ROUTE) if policy.blank_out_of_path else {}
-    invalid = _reasons(result, ("invalid-value",)) if policy.blank_invalid else {}
+    invalid = _reasons(result, (INVALID_VALUE.name,)) if policy.blank_invalid else {}
     for j, item in enumerate(state.items):
         for col in result.export_columns(item):
             if col not in frame.columns:
@@ -117,10 +118,10 @@ def apply_policy(
             if policy.blank_out_of_path and item not in result.unjudged:
                 cond = _condition_text(q, item)
                 why = f"the routing did not ask {item}" + (f" (condition: {cond})" if cond else "")
-                todo.append((nonempty & ~state.due[:, j], off_route, "out-of-path", why))
+                todo.append((nonempty & ~state.due[:, j], off_route, OUT_OF_PATH.name, why))
             if policy.blank_invalid:
                 todo.append((nonempty & state.due[:, j] & state.has_value[:, j] & ~state.valid[:, j], invalid,
-                             "invalid-value", f"not a valid answer to {item}"))
+                             INVALID_VALUE.name, f"not a valid answer to {item}"))
             done = np.zeros(len(frame), bool)
             for mask, reasons, fallback, why in todo:
                 rows = np.flatnonzero(mask & kept & ~done)

@@ -11,6 +11,7 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.compute as pc
 
+from logiccheck.checks.registry import CheckInfo, describe
 from logiccheck.data import causes
 from logiccheck.data.dispositions import answered_share, default_dispositions, tally
 from logiccheck.data.evaluate import ChunkState, Evaluator, reads_of
@@ -35,11 +36,91 @@ from logiccheck.suggest import closest, did_you_mean
 
 Progress = Callable[[int, int], None]  # (rows done, bytes done)
 
+# The data stage's checks: declared here, beside the evaluator pass that finds them (one
+# vectorised pass finds them all, so they are `describe`d rather than `data_check`s). The
+# code below names them only through these objects.
+MISSING_COLUMN = describe(
+    "missing-column",
+    severity="error",
+    stage="data",
+    summary="An item, grid row, option or the id has no column in the export.",
+    what="A column the default layout (or the mapping) expects is absent: `NAME` for single, number and text items and sample variables, `NAME_N` for each option of a multi item, and the respondent id column.",
+    why="Without the column every answer to that item is lost; the usual cause is a renamed variable in the fielding tool or a trimmed export.",
+    bad="spec: trips: number 1..2000 \"Trips?\"\nexport header: id,age,used,trip_count",
+    good="export header: id,age,used,trips\n(or map it: [data.columns] trips = \"trip_count\")",
+)
+UNKNOWN_COLUMN = describe(
+    "unknown-column",
+    severity="info",
+    stage="data",
+    summary="An export column matches nothing in the spec.",
+    what="A column that is no item, grid row, option column, sample variable, id or duration column.",
+    why="It is often an item added in the fielding tool but not in the spec, or a misspelt name; either way its answers are not checked.",
+    bad="export header: id,age,used,age_group",
+    good="add `age_group` to the spec, rename the column, or list it under `ignore` in the mapping",
+)
+INVALID_VALUE = describe(
+    "invalid-value",
+    severity="error",
+    stage="data",
+    summary="A cell holds a value the item cannot have.",
+    what="Not a declared code, outside the number range, not a number (\"12a\"), not a whole number for a `number` item, a non-response code on a `strict` item, or a multi option cell other than 1, 0 or blank.",
+    why="Impossible values distort every table they enter; an invalid value also opens no later item (cascade), so follow-ups behind it are judged as not due.",
+    bad="used: single yesno \"Used a city bike?\"\nexport: used = 3",
+    good="export: used = 1 (yes) or 2 (no)",
+)
+OUT_OF_PATH = describe(
+    "out-of-path",
+    severity="error",
+    stage="data",
+    summary="An answer where the routing says the item is not asked.",
+    what="A value in the export for a respondent the routing does not route to the item, with the root cause: which condition was false for them, and what the items it reads held.",
+    why="Answers off the route come from platform glitches, the back button, paper forms or merged files; analysed as they are, they inflate the item's base.",
+    bad="range_ok: single agree5 \"...\" when ebike = yes\nexport: ebike = 2 (no), range_ok = 4",
+    good="export: ebike = 2 (no), range_ok blank",
+)
+MISSING_ON_PATH = describe(
+    "missing-on-path",
+    severity="info",
+    stage="data",
+    summary="The routing asks the item, but the export has no answer.",
+    what="A respondent due the item (every condition true, no stop or skip) with a blank cell. Info by default, since respondents may leave items blank; an error for `required` items, which the form should have forced.",
+    why="Item non-response where an answer was due; for a required item it means the form or the export dropped answers.",
+    bad="age: number 0..120 \"How old are you?\" strict required\nexport: age blank",
+    good="export: age = 34",
+)
+SHOWN_MISMATCH = describe(
+    "shown-mismatch",
+    severity="warning",
+    stage="data",
+    summary="The export's shown / not-shown marker disagrees with the routing.",
+    what="With `not_shown` or `unanswered` markers in the mapping: a cell marked not shown where the routing shows the item, or marked shown-but-unanswered where it does not.",
+    why="The fielding tool routed differently from the spec: either the spec or the programmed questionnaire is wrong.",
+    bad="mapping: not_shown = [\"-7\"]\nexport: used = 1 (yes), freq = -7",
+    good="export: used = 1 (yes), freq = 2",
+)
+AFTER_STOP = describe(
+    "after-stop",
+    severity="error",
+    stage="data",
+    summary="Answers recorded after a stop ended the interview.",
+    what="A value for an item that comes after a `stop` that fired for this respondent.",
+    why="A screened-out respondent should have no further answers; their presence means the screen-out did not work or files were merged.",
+    bad="stop underage \"...\" when age < 16\nexport: age = 14, used = 1",
+    good="export: age = 14, used blank",
+)
+CHECK_FAILED = describe(
+    "check-failed",
+    severity="error",
+    stage="data",
+    summary="An edit rule (`check`) does not hold for a respondent.",
+    what="A `check` that applies to the respondent (reached, `when` true) whose `require` is false; `soft` checks give warnings. A `require` that is unknown because an input is blank is not a failure.",
+    why="Edit rules state what consistent answers look like; failures point to misreporting or data-entry errors.",
+    bad="check daily_needs_trips \"...\" when freq = daily require trips >= 100 soft\nexport: freq = 1 (daily), trips = 12",
+    good="export: freq = 1 (daily), trips = 240",
+)
 
-def _sev(name: str) -> Severity:
-    from logiccheck.checks.registry import default_severity
-
-    return default_severity(name)
+OFF_ROUTE = {"stop": AFTER_STOP}  # the guard that kept an item off the route → its check
 
 
 def validate(
@@ -295,7 +376,7 @@ class Validator:
         for name, col in self.layout.missing:
             if name == "id":
                 msg = f"the export has no respondent id column `{col}`; rows are numbered instead (set `id` in the mapping)"
-                out.append(FindingBlock("missing-column", _sev("missing-column"), None, msg, empty))
+                out.append(FindingBlock(MISSING_COLUMN.name, MISSING_COLUMN.severity, None, msg, empty))
                 continue
             hint = ""
             plan = self.layout.plans.get(name)
@@ -315,11 +396,11 @@ class Validator:
             shown = ", ".join(f"`{i}`" for i in after[:8]) + (f" and {len(after) - 8} more" if len(after) > 8 else "")
             depends = f"; not judged for routing, as their conditions read it: {shown}" if after else ""
             msg = f"the export has no column `{col}` for `{name}`; every answer to it counts as missing{depends}{hint}"
-            out.append(FindingBlock("missing-column", _sev("missing-column"), name, msg, empty))
+            out.append(FindingBlock(MISSING_COLUMN.name, MISSING_COLUMN.severity, name, msg, empty))
         for col in self.layout.unknown:
             hint = did_you_mean(col, missing_cols, cutoff=0.75)
             msg = f"column `{col}` is not in the spec (no item, grid row or sample variable of that name); it is ignored{hint}"
-            out.append(FindingBlock("unknown-column", _sev("unknown-column"), None, msg, empty))
+            out.append(FindingBlock(UNKNOWN_COLUMN.name, UNKNOWN_COLUMN.severity, None, msg, empty))
         return out
 
     def _item_blocks(
@@ -343,7 +424,7 @@ class Validator:
                 rows = np.flatnonzero(bad & (c.reason == reason))
                 vals = cell_texts(table, plan, rows, self.mapping)
                 msg = f"`{item}` = {{value}} {REASON_TEXT[reason]}{self._allowed(plan)}"
-                out.append(FindingBlock("invalid-value", _sev("invalid-value"), item, msg, rows + offset, ids[rows], vals))
+                out.append(FindingBlock(INVALID_VALUE.name, INVALID_VALUE.severity, item, msg, rows + offset, ids[rows], vals))
         judged = item not in self.unjudged
         blocked = state.blocked.get(item) if judged else None
         if blocked is not None:
@@ -356,34 +437,35 @@ class Validator:
                 sel = np.flatnonzero(inverse == gi)
                 g = guards[int(group[0])] if int(group[0]) >= 0 else None
                 rows = blocked.rows[sel]
+                info: CheckInfo
                 if g is None:
                     msg = f"`{item}` answered, but the routing does not ask it here"
-                    check = "out-of-path"
+                    info = OUT_OF_PATH
                 else:
                     msg = causes.off_route_message(q, item, g, group[1:])
-                    check = "after-stop" if g.kind == "stop" else "out-of-path"
+                    info = OFF_ROUTE.get(g.kind, OUT_OF_PATH)
                 out.append(
-                    FindingBlock(check, _sev(check), item, msg, rows + offset, ids[rows], [vals_all[i] for i in sel])
+                    FindingBlock(info.name, info.severity, item, msg, rows + offset, ids[rows], [vals_all[i] for i in sel])
                 )
         if plan.kind != "note" and not plan.missing and any_missing and judged:
             missing = due & ~c.present
             if missing.any():
                 rows = np.flatnonzero(missing)
                 required = plan.entry.kind == "item" and plan.entry.stmt.flags.required
-                sev = Severity.error if required else _sev("missing-on-path")
+                sev = Severity.error if required else MISSING_ON_PATH.severity
                 extra = " (the item is `required`)" if required else ""
                 msg = f"`{item}` was due but has no answer{extra}"
-                out.append(FindingBlock("missing-on-path", sev, item, msg, rows + offset, ids[rows], None))
+                out.append(FindingBlock(MISSING_ON_PATH.name, sev, item, msg, rows + offset, ids[rows], None))
         if c.not_shown is not None:
             rows = np.flatnonzero(c.not_shown & due)
             if rows.size:
                 msg = f"`{item}` is marked not shown, but the routing shows it to this respondent"
-                out.append(FindingBlock("shown-mismatch", _sev("shown-mismatch"), item, msg, rows + offset, ids[rows], None))
+                out.append(FindingBlock(SHOWN_MISMATCH.name, SHOWN_MISMATCH.severity, item, msg, rows + offset, ids[rows], None))
         if c.unanswered is not None:
             rows = np.flatnonzero(c.unanswered & ~due)
             if rows.size:
                 msg = f"`{item}` is marked shown, but the routing does not show it to this respondent"
-                out.append(FindingBlock("shown-mismatch", _sev("shown-mismatch"), item, msg, rows + offset, ids[rows], None))
+                out.append(FindingBlock(SHOWN_MISMATCH.name, SHOWN_MISMATCH.severity, item, msg, rows + offset, ids[rows], None))
         return out
 
     def _allowed(self, plan: NamePlan) -> str:
@@ -412,7 +494,7 @@ class Validator:
             sev = Severity.warning if e.stmt.soft else Severity.error
             req = causes.source_of(self.q, e.require) if e.require is not None else ""
             msg = f"check `{e.name}` failed: {e.stmt.text} (requires `{req}`, line {e.span.line})"
-            out.append(FindingBlock("check-failed", sev, e.name, msg, rows + offset, ids[rows], None))
+            out.append(FindingBlock(CHECK_FAILED.name, sev, e.name, msg, rows + offset, ids[rows], None))
         return out
 
     def _typed(self, cells: dict[str, Cells], ids: np.ndarray, table: pa.Table) -> pd.DataFrame:

@@ -7,7 +7,7 @@ import pandas as pd
 
 from logiccheck.data.mapping import DataMapping
 from logiccheck.data.result import ValidationResult
-from logiccheck.data.validate import validate
+from logiccheck.data.validate import CHECK_FAILED, validate
 from logiccheck.model.questionnaire import Questionnaire
 from logiccheck.quality.route import RouteError, RouteState, item_columns
 
@@ -28,7 +28,7 @@ def state_from_validation(q: Questionnaire, result: ValidationResult) -> RouteSt
     failed = {e.name: np.zeros(n, bool) for e in q.entries if e.kind == "check"}
     # From the finding blocks (0-based rows): no need to materialise every finding.
     for b in result.blocks:
-        if b.check == "check-failed" and b.item in failed and b.rows.size:
+        if b.check == CHECK_FAILED.name and b.item in failed and b.rows.size:
             failed[b.item][b.rows] = True
     columns = {name: item_columns(q, q.symbols[name]) for name in result.items}
     return RouteState([str(i) for i in result.ids], list(result.items), result.due, result.has_value, result.valid,
