@@ -80,8 +80,8 @@ def _removals(result: PipelineResult, policy: CleanPolicy) -> dict[int, tuple[st
         out[r] = (f.check, f"respondent removed by policy ({f.check}): {f.message}")
     if CHECK_FAILED.name in drops:
         for name, failed in state.checks_failed.items():
-            for r in np.flatnonzero(failed):
-                out.setdefault(int(r), (CHECK_FAILED.name, f"respondent removed by policy (check-failed): fails check {name}"))
+            for r in np.flatnonzero(failed).tolist():
+                out.setdefault(r, (CHECK_FAILED.name, f"respondent removed by policy (check-failed): fails check {name}"))
     if policy.keep_dispositions is not None:
         keep = set(policy.keep_dispositions)
         for r, d in enumerate(result.disposition.tolist()):
@@ -132,7 +132,7 @@ def apply_policy(
                                     "old_value": str(cells[r]), "new_value": "", "check": check, "reason": reason})
                     blanked[check] = blanked.get(check, 0) + 1
                 if len(rows):
-                    cleaned.iloc[rows, cleaned.columns.get_loc(col)] = ""
+                    cleaned.loc[cleaned.index[rows], col] = ""
     removed: dict[str, int] = {}
     for r, (check, why) in sorted(removed_rows.items()):
         original = {c: str(v) for c, v in frame.iloc[r].items()}
@@ -156,7 +156,7 @@ def reverse_audit(cleaned: pd.DataFrame, audit: pd.DataFrame) -> pd.DataFrame:
     removed_at = {int(r): json.loads(v) for r, v in zip(removals["row"], removals["old_value"], strict=True)}
     total = len(cleaned) + len(removed_at)
     rows: list[dict[str, str]] = []
-    kept_iter = iter(cleaned.to_dict(orient="records"))
+    kept_iter = iter([{str(k): v for k, v in r.items()} for r in cleaned.to_dict(orient="records")])
     for r in range(1, total + 1):
         rows.append(removed_at[r] if r in removed_at else next(kept_iter))
     out = pd.DataFrame(rows, columns=list(cleaned.columns))

@@ -44,7 +44,7 @@ def _repair_hints(q: Questionnaire, result: PipelineResult, config: QualityConfi
     frame = _by_spec_name(result)
     repairer = Repairer(q, config.repair.weights, timeout_ms=config.repair.timeout_ms)
     for r in failing[:MAX_HINTS]:
-        hint = repairer.hint(frame.iloc[r].to_dict())
+        hint = repairer.hint({str(k): v for k, v in frame.iloc[r].to_dict().items()})
         if hint is None:
             continue
         checks = [name for name, m in state.checks_failed.items() if m[r]]

@@ -47,7 +47,9 @@ def clean_command(spec: str, data: str, map_file: str | None, frame: str | None,
         outcomes = read_outcomes(Path(sample_file)) if sample_file else None
         options = run_options(map_file, frame, encoding, delimiter, chunk_rows, config=config, quality=quality)
         run = clean_export(loaded, Path(data), Path(out), policy, sample_outcomes=outcomes, options=options)
-    except (PolicyError, ExportError, RatesError, *INPUT_ERRORS) as err:
+    except (PolicyError, ExportError, RatesError) as err:
+        fail(str(err))
+    except INPUT_ERRORS as err:
         fail(str(err))
     console = make_console(color)
     s = run.summary

@@ -37,7 +37,7 @@ def run_validation(
     bad input stops the command with one line (exit 2)."""
     err_console = make_console(color, stderr=True)
     started = time.monotonic()
-    state: dict[str, object] = {}
+    state: dict[str, Any] = {}
 
     def progress(rows: int, _bytes: int) -> None:
         if "bar" not in state:
@@ -56,7 +56,7 @@ def run_validation(
             state["bar"] = bar
             state["task"] = bar.add_task("validate", total=None, name=Path(data).name)
         bar = state["bar"]
-        bar.update(state["task"], completed=rows)  # type: ignore[attr-defined]
+        bar.update(state["task"], completed=rows)
 
     try:
         return run_pipeline(loaded, data, dataclasses.replace(options, progress=progress))
@@ -64,7 +64,7 @@ def run_validation(
         fail(str(err))
     finally:
         if "bar" in state:
-            state["bar"].stop()  # type: ignore[attr-defined]
+            state["bar"].stop()
 
 
 def run_options(map_file: str | None, frame: str | None, encoding: str | None, delimiter: str | None,

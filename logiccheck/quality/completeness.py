@@ -112,7 +112,7 @@ def parse_rule(text: str, q: Questionnaire, where: str = "completeness rule") ->
 def reached_mask(state: RouteState, item: str) -> np.ndarray:
     """Got at least as far as `item`: a value recorded on it or on any later item."""
     j = state.col(item)
-    return state.has_value[:, j:].any(axis=1)
+    return np.asarray(state.has_value[:, j:].any(axis=1), dtype=bool)
 
 
 def eval_rule(rule: Rule, q: Questionnaire, state: RouteState, table: pd.DataFrame, config: CompletenessConfig) -> np.ndarray:

@@ -5,6 +5,7 @@ from __future__ import annotations
 import csv
 import io
 from pathlib import Path
+from typing import TextIO
 
 import pyarrow as pa
 import pyarrow.csv as pacsv
@@ -22,7 +23,7 @@ def items_csv(result: ValidationResult) -> str:
     return buf.getvalue()
 
 
-def write_findings_csv(result: ValidationResult, fh: io.TextIOBase, *, sheet_safe: bool = False) -> None:
+def write_findings_csv(result: ValidationResult, fh: TextIO, *, sheet_safe: bool = False) -> None:
     """Every finding, one row each, in FINDING_COLUMNS order: `validate --format csv` and
     `clean`'s findings.csv. `sheet_safe` neutralises cells a spreadsheet would run as a
     formula. Large plain blocks go through pyarrow's CSV writer."""
