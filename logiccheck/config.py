@@ -9,7 +9,7 @@ without a `[tool.logiccheck]` table is passed over), or named with `--config FIL
     [checks]
     "unsafe-pipe" = "error"      # a severity override ...
     "always-asked" = "off"       # ... or turn a check off
-    [data]                       # the data mapping (DESIGN §6)
+    [data]                       # the data mapping (docs/formats.md)
     [quality]                    # quality thresholds
     [clean]                      # cleaning policy
 """

@@ -72,7 +72,7 @@ class Diagnostic(BaseModel):
         return (self.span.file, self.span.line, self.span.column, self.check)
 
     def to_json(self) -> dict[str, object]:
-        """The fixed JSON shape of DESIGN §5, plus optional extras."""
+        """The fixed JSON shape of docs/formats.md, plus optional extras."""
         out: dict[str, object] = {
             "check": self.check,
             "severity": self.severity.value,

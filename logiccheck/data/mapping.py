@@ -1,4 +1,4 @@
-"""How an export's columns map onto the spec (DESIGN §6); the defaults need no file."""
+"""How an export's columns map onto the spec (docs/formats.md); the defaults need no file."""
 
 from __future__ import annotations
 

@@ -98,7 +98,7 @@ class ValidationResult:
         )
 
     def to_json(self) -> dict[str, Any]:
-        """DESIGN §5: respondents, items, findings, dispositions."""
+        """docs/formats.md: respondents, items, findings, dispositions."""
         counts = ("expected", "answered", "out_of_path", "missing_on_path", "invalid")
         items = [
             {"item": r["item"], **{k: int(r[k]) for k in counts}, "over_expected": bool(r["over_expected"])}

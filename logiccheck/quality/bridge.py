@@ -42,6 +42,6 @@ def require_id(frame: pd.DataFrame, id_column: str) -> None:
 
 def route_state(q: Questionnaire, frame: pd.DataFrame, id_column: str = "id") -> RouteState:
     """Due, answered, valid and non-response masks for every respondent × item of an
-    export in the default layout (DESIGN §6), by the data stage's evaluator."""
+    export in the default layout (docs/formats.md), by the data stage's evaluator."""
     require_id(frame, id_column)
     return state_from_validation(q, validate(q, frame, DataMapping(id=id_column), keep_cells=True))

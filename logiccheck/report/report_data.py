@@ -181,7 +181,7 @@ def settings_used(config: Any, mapping: Any = None) -> dict[str, Any]:
     """
     out: dict[str, Any] = {"configuration": getattr(config, "source", None) or "none found (defaults)"}
     if mapping is not None:
-        out["mapping"] = mapping.model_dump(exclude_defaults=True) or "defaults (DESIGN §6 layout)"
+        out["mapping"] = mapping.model_dump(exclude_defaults=True) or "defaults (docs/formats.md layout)"
     for table in ("checks", "quality", "clean"):
         value = getattr(config, table, None)
         if value:
