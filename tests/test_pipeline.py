@@ -182,3 +182,31 @@ def test_stdin_export_reads_like_a_file(monkeypatch: pytest.MonkeyPatch) -> None
     loaded = load_file(SPECS / "bikeshare.qlc")
     piped = run_pipeline(loaded, "-")
     assert piped.to_json() == run_pipeline(loaded, SPECS / "bikeshare_export.csv").to_json()
+
+
+def test_analyses_reach_validate_json_and_the_cleaned_export(tmp_path: Path) -> None:
+    import numpy as np
+
+    from logiccheck.checks import analyses
+    from logiccheck.clean.run import clean_export
+
+    analyses.all_analyses()  # load the registered ones first, so the probe is removed cleanly
+
+    @analyses.analysis("probe")
+    def probe(ctx):  # type: ignore[no-untyped-def]
+        # Reads the context the checks read: the dispositions are already there.
+        complete = ctx.disposition == "complete"
+        return analyses.Analysis(sections={"probe": {"complete": int(complete.sum())}},
+                                 columns={"probe_flag": np.where(complete, 1.0, np.nan)},
+                                 summary={"probe": "ran"})
+
+    try:
+        loaded = load_file(SPECS / "bikeshare.qlc")
+        result = run_pipeline(loaded, SPECS / "bikeshare_export.csv")
+        assert result.to_json()["probe"] == {"complete": result.dispositions["complete"]}
+        run = clean_export(loaded, SPECS / "bikeshare_export.csv", tmp_path / "out")
+        assert run.summary["probe"] == "ran"
+        cleaned = pd.read_csv(tmp_path / "out" / "bikeshare_export.cleaned.csv", dtype=str, keep_default_na=False)
+        assert (cleaned["probe_flag"] == "1.0").sum() == result.dispositions["complete"]
+    finally:
+        analyses._ANALYSES.pop("probe", None)
