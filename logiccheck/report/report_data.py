@@ -14,12 +14,11 @@ from typing import Any
 
 import pandas as pd
 
-from logiccheck.diagnostics import Diagnostic
+from logiccheck.diagnostics import SEVERITY_ORDER, Diagnostic
 from logiccheck.model.questionnaire import Questionnaire
 
 ITEM_COLUMNS = ["item", "expected", "answered", "out_of_path", "missing_on_path", "invalid"]
 FINDING_COLUMNS = ["check", "severity", "respondent", "row", "item", "value", "message"]
-SEVERITY_ORDER = {"error": 0, "warning": 1, "info": 2}
 
 
 @dataclass
