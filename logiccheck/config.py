@@ -9,14 +9,13 @@ without a `[tool.logiccheck]` table is passed over), or named with `--config FIL
     [checks]
     "unsafe-pipe" = "error"      # a severity override ...
     "always-asked" = "off"       # ... or turn a check off
-    [data]                       # the data mapping (DESIGN §6)
+    [data]                       # the data mapping (docs/formats.md)
     [quality]                    # quality thresholds
     [clean]                      # cleaning policy
 """
 
 from __future__ import annotations
 
-import difflib
 import importlib
 import sys
 from pathlib import Path
@@ -25,6 +24,7 @@ from typing import Any, Literal
 from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
 from logiccheck.diagnostics import Severity
+from logiccheck.suggest import did_you_mean
 
 if sys.version_info >= (3, 11):
     import tomllib
@@ -78,8 +78,7 @@ TOP_KEYS = ("fail-on", "format", "checks", "data", "quality", "clean")
 
 
 def _did_you_mean(word: str, options: list[str]) -> str:
-    close = difflib.get_close_matches(word, options, n=1, cutoff=0.6)
-    return f"; did you mean `{close[0]}`?" if close else ""
+    return did_you_mean(word, options)
 
 
 def _fmt_loc(loc: tuple[Any, ...], prefix: str) -> str:
@@ -114,22 +113,22 @@ def find_config(start: str | Path) -> Path | None:
     return None
 
 
-def read_toml(path: Path, what: str = "configuration", error: type[ValueError] | None = None) -> dict[str, Any]:
+def read_toml(path: Path, what: str = "configuration", error: type[Exception] | None = None) -> dict[str, Any]:
     """A TOML file as a dict; a missing, unreadable or malformed file raises `error`
     (default `ConfigError`) with one line naming the file and `what` it should be."""
-    error = error or ConfigError
+    fail: type[Exception] = error or ConfigError
     try:
         raw = path.read_bytes()
     except FileNotFoundError:
-        raise error(f"{path}: no such {what} file") from None
+        raise fail(f"{path}: no such {what} file") from None
     except OSError as err:
-        raise error(f"{path}: cannot read the {what} ({err.strerror})") from None
+        raise fail(f"{path}: cannot read the {what} ({err.strerror})") from None
     try:
         return tomllib.loads(raw.decode("utf-8"))
     except UnicodeDecodeError:
-        raise error(f"{path}: not UTF-8 text; save the {what} as UTF-8") from None
+        raise fail(f"{path}: not UTF-8 text; save the {what} as UTF-8") from None
     except tomllib.TOMLDecodeError as err:
-        raise error(f"{path}: not valid TOML ({err})") from None
+        raise fail(f"{path}: not valid TOML ({err})") from None
 
 
 

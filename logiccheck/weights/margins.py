@@ -11,9 +11,10 @@ from typing import Any, Literal
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator
 
-from logiccheck.config import _did_you_mean, _pydantic_message, read_toml
+from logiccheck.config import _pydantic_message, read_toml
 from logiccheck.model import nodes as n
 from logiccheck.model.questionnaire import Questionnaire
+from logiccheck.suggest import did_you_mean as _did_you_mean
 
 # Shares may be rounded in their published source; within this of 1 they are rescaled to
 # sum to exactly 1 (common practice, no source).
@@ -61,7 +62,7 @@ class MarginsFile(BaseModel):
     model_config = ConfigDict(extra="forbid")
 
     margins: dict[str, dict[str, float]]
-    weights: WeightSettings = Field(default_factory=WeightSettings)
+    weights: WeightSettings = Field(default_factory=lambda: WeightSettings.model_validate({}))
 
 
 @dataclass(frozen=True)
