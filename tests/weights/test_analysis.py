@@ -8,6 +8,7 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
+import pytest
 
 from logiccheck.checks.analyses import all_analyses
 from tests.cli_run import run_cli
@@ -108,3 +109,22 @@ def test_notebook_api_validate_and_clean_with_margins(tmp_path: Path) -> None:
     assert c.cleaned["weight"].tolist() == file["weight"].tolist()
     assert c.summary["weights"] == json.loads((tmp_path / "o" / "summary.json").read_text())["weights"] | {
         "margins_file": c.summary["weights"]["margins_file"]}
+
+
+def test_weights_follow_the_respondents_the_policy_keeps(tmp_path: Path) -> None:
+    spec, export, margins, truth = make(tmp_path, n=200)
+    policy = tmp_path / "policy.toml"
+    policy.write_text('[clean]\nkeep_dispositions = ["complete", "outsider"]\n', encoding="utf-8")
+    ran = run_cli("clean", str(spec), "--data", str(export), "--margins", str(margins), "--policy", str(policy),
+                  "--out", str(tmp_path / "o"))
+    assert ran.returncode == 0, ran.stderr
+    cleaned = pd.read_csv(tmp_path / "o" / "library.cleaned.csv", dtype=str, keep_default_na=False)
+    assert len(cleaned) == int((truth["disposition"] != "partial").sum())
+    w = pd.to_numeric(cleaned["weight"].replace("", np.nan))
+    has = w.notna()
+    # Partials were removed: the weights are raked again over the completes that remain.
+    assert w[has].mean() == pytest.approx(1.0, abs=1e-12)
+    shares = w[has].groupby(pd.to_numeric(cleaned.loc[has, "member"])).sum() / w[has].sum()
+    assert shares[1.0] == pytest.approx(0.35, abs=1e-9) and shares[2.0] == pytest.approx(0.65, abs=1e-9)
+    summary = json.loads((tmp_path / "o" / "summary.json").read_text())
+    assert summary["weights"]["n"] == int(has.sum())
