@@ -64,6 +64,11 @@ class DataMapping(BaseModel):
     columns: dict[str, str] = Field(default_factory=dict)
     # Export columns to ignore silently (not reported as unknown-column).
     ignore: list[str] = Field(default_factory=list)
+    # How coded answers are written: numeric codes, answer labels ("Yes", matched after
+    # trimming and ignoring case; a label's name such as `yes` too), or either per cell.
+    values: Literal["codes", "labels", "auto"] = "codes"
+    # The decimal mark of numbers: "," reads 2,5 as 2.5.
+    decimal: Literal[".", ","] = "."
 
     def column_of(self, name: str) -> str:
         return self.columns.get(name, name)
