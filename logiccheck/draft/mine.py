@@ -29,7 +29,7 @@ MIN_GAIN_RELATIVE = 0.10
 # Literals within this many errors of the best are ties, settled by simplicity and order.
 TIE_SHARE = 0.001
 # A second literal is searched inside the rows of at most this many first literals.
-ANCHORS = 12
+ANCHORS = 24
 # The search runs on a random sample of at most this many rows; the chosen condition is
 # then scored on every row.
 SEARCH_ROWS = 20_000
@@ -195,7 +195,7 @@ def _best_literal(v: Var, w: np.ndarray, a: np.ndarray) -> tuple[int, Literal] |
         if k >= 3:
             # Codes are ordered: a threshold reads better than a long set where it fits as well.
             for err, op, code in _thresholds(pos[:k], neg[:k], int(pos[k]), np.asarray(v.options, dtype=np.float64)):
-                consider(err, Literal(v.name, op, (code,)))
+                consider(int(err), Literal(v.name, op, (code,)))
     elif v.kind == "number" and v.value is not None:
         uniq, idx = v.numbers()
         m = len(uniq)
@@ -203,7 +203,7 @@ def _best_literal(v: Var, w: np.ndarray, a: np.ndarray) -> tuple[int, Literal] |
             pos = np.bincount(idx[wa], minlength=m + 1)
             neg = np.bincount(idx[wn], minlength=m + 1)
             for err, op, cut in _thresholds(pos[:m], neg[:m], int(pos[m]), uniq):
-                consider(err, Literal(v.name, op, (cut,)))
+                consider(int(err), Literal(v.name, op, (cut,)))
     elif v.kind == "multi" and v.chosen is not None and v.options:
         tp = (v.chosen & wa[:, None]).sum(axis=0)
         fp = (v.chosen & wn[:, None]).sum(axis=0)
@@ -228,7 +228,42 @@ def _thresholds(pos: np.ndarray, neg: np.ndarray, none_pos: int, values: np.ndar
     err_ge = below_pos + (cneg[-1] - below_neg) + none_pos
     err_lt = (cpos[-1] - below_pos) + below_neg + none_pos
     j, i = int(np.argmin(err_ge)), int(np.argmin(err_lt))
-    return [(int(err_ge[j]), "ge", float(values[j + 1])), (int(err_lt[i]), "lt", float(values[i + 1]))]
+    return [(err_ge[j], "ge", float(values[j + 1])), (err_lt[i], "lt", float(values[i + 1]))]
+
+
+def _anchors(v: Var, w: np.ndarray, a: np.ndarray) -> list[Literal]:
+    """Literals on `v` that could be one half of a conjunction: they keep most answered
+    rows while dropping more than their share of blank ones (codes and options answered
+    more often than average, and the threshold with the least balanced error)."""
+    wa, wn = w & a, w & ~a
+    n_pos, n_neg = max(int(wa.sum()), 1), max(int(wn.sum()), 1)
+    base = n_pos / (n_pos + n_neg)
+    out: list[Literal] = []
+    if v.kind == "coded" and v.options:
+        k = len(v.options)
+        idx = v.code_index()
+        pos = np.bincount(idx[wa], minlength=k + 1)[:k]
+        neg = np.bincount(idx[wn], minlength=k + 1)[:k]
+        rate = pos / np.maximum(pos + neg, 1)
+        lift = rate > base
+        if lift.any():
+            out.append(Literal(v.name, "in", tuple(float(c) for c, t in zip(v.options, lift.tolist(), strict=True) if t)))
+            out += [Literal(v.name, "in", (float(c),)) for c, t in zip(v.options, lift.tolist(), strict=True) if t]
+    elif v.kind == "number" and v.value is not None:
+        uniq, idx = v.numbers()
+        m = len(uniq)
+        if m >= 2:
+            pos = np.bincount(idx[wa], minlength=m + 1)
+            neg = np.bincount(idx[wn], minlength=m + 1)
+            for _err, op, cut in _thresholds(pos[:m] / n_pos, neg[:m] / n_neg, pos[m] / n_pos, uniq):
+                out.append(Literal(v.name, op, (cut,)))
+    elif v.kind == "multi" and v.chosen is not None and v.options:
+        tp = (v.chosen & wa[:, None]).sum(axis=0)
+        fp = (v.chosen & wn[:, None]).sum(axis=0)
+        rate = tp / np.maximum(tp + fp, 1)
+        out += [Literal(v.name, "has", (float(o),)) for o, r in zip(v.options, rate.tolist(), strict=True) if r > base]
+    out.append(Literal(v.name, "answered"))
+    return out
 
 
 def _pick(cands: list[tuple[int, Literal, Var]], tie: int) -> tuple[int, Literal, Var] | None:
@@ -263,8 +298,15 @@ def search(earlier: Sequence[Var], answered: np.ndarray, alive: np.ndarray) -> C
     best_err, best = first[0], Condition((first[1],))
     # A second literal: inside the rows each promising first literal keeps.
     pairs: list[tuple[int, Literal, Var, Literal, Var]] = []
-    for _err1, lit1, v1 in sorted(singles, key=lambda c: c[0])[:ANCHORS]:
-        keep = lit1.mask(v1) & alive
+    n_pos, n_neg = max(int(a.sum()), 1), max(int((alive & ~a).sum()), 1)
+    scored = []
+    for v in earlier:
+        for lit in {*_anchors(v, alive, a), *(s[1] for s in singles if s[2] is v)}:
+            keep = lit.mask(v) & alive
+            balanced = int((a & ~keep).sum()) / n_pos + int((keep & ~a).sum()) / n_neg
+            scored.append((balanced, lit.rank, v.position, lit, v, keep))
+    scored.sort(key=lambda t: (*t[:3], t[3].op, t[3].codes))  # a total order: runs repeat exactly
+    for _b, _r, _p, lit1, v1, keep in scored[:ANCHORS]:
         missed = int((a & ~keep).sum())  # answered, but the first literal says not asked
         for v2 in earlier:
             if v2 is v1:

@@ -52,10 +52,12 @@ def render(source: str, inferred: Inferred, routed: list[Routed]) -> str:
         "# coincidence of the data rather than the routing that was meant.",
     ]
     delimited = [r.column.var.name for r in routed if r.column.delimited]
-    labelled = any(r.column.kind == "single" and r.column.texts and any(
-        t != str(c) for c, t in r.column.texts.items()) for r in routed)
+    labelled = [r.column.var.name for r in routed if r.column.kind == "single" and any(
+        t != str(c) for c, t in r.column.texts.items())]
     if labelled or delimited:
-        lines.append('# The export holds answer labels: validate it with `[data] values = "labels"`.')
+        names = ", ".join([*labelled, *delimited])
+        lines.append(f'# Read as answer labels: {names}. Validate with `[data] values = "auto"`; a column of free')
+        lines.append("# text with few distinct answers reads as labels too: declare it `text` if so.")
     if delimited:
         lines.append(f"# {', '.join(delimited)}: one column of labels separated by `;`: set `layout = \"delimited\"` under [data.multi].")
     if inferred.renamed:
