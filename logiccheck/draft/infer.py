@@ -192,6 +192,7 @@ def _nonresponse(parsed: dict, groups: dict) -> list[int]:
     two columns: the spec's non-response codes."""
     in_groups = {c for _, members in groups.values() for c, _ in members}
     seen: dict[int, int] = {}
+    tails: list[list[int]] = []
     for col, (present, value, numeric) in parsed.items():
         if col in in_groups or not numeric or not present.any():
             continue
@@ -205,10 +206,13 @@ def _nonresponse(parsed: dict, groups: dict) -> list[int]:
         for cut in np.flatnonzero(gaps >= 2.0)[::-1]:
             tail = uniq[cut + 1 :]
             if len(tail) <= 4 and tail.min() >= 7 and uniq[cut] <= CODED_MAX:
-                for v in tail.tolist():
-                    seen[int(v)] = seen.get(int(v), 0) + 1
+                tails.append([int(v) for v in tail.tolist()])
+                for v in tails[-1]:
+                    seen[v] = seen.get(v, 0) + 1
                 break
-    return sorted(v for v, k in seen.items() if k >= 2)
+    common = {v for v, k in seen.items() if k >= 2}
+    # A code seen in one column only counts beside a common one (98 beside 99).
+    return sorted({v for tail in tails if common & set(tail) for v in tail})
 
 
 def _round_out(lo: float, hi: float) -> tuple[float, float]:
