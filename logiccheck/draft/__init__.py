@@ -88,8 +88,4 @@ def _lint_errors(text: str, routed: list[Routed]) -> list[Routed]:
     if not errors:
         return []
     names = {d.item for d in errors if d.item}
-    hit = [r for r in routed if r.column.var.name in names and r.condition.literals]
-    if hit:
-        return hit
-    # An error not tied to one item: drop every condition that reads anything rather than write a broken draft.
-    return [r for r in routed if r.condition.literals]
+    return [r for r in routed if r.column.var.name in names and r.condition.literals]

@@ -240,8 +240,17 @@ def _numeric(name: str, col: str, present: np.ndarray, value: np.ndarray, nonres
             codes = [int(v) for v in uniq]
         var = Var(name, "coded", present, value, nr, options=codes, labels={c: f"c{c}" for c in codes})
         return Column(var, [col], "single", {c: str(c) for c in codes}, strict=strict)
-    lo, hi = (float(uniq.min()), float(uniq.max())) if len(uniq) else (0.0, 0.0)
-    lo, hi = _round_out(lo, hi)
+    seen_lo, seen_hi = (float(uniq.min()), float(uniq.max())) if len(uniq) else (0.0, 0.0)
+    lo, hi = _round_out(seen_lo, seen_hi)
+    if not strict:
+        # Rounding out must not swallow a non-response code (it could no longer be read).
+        for code in nr_codes.tolist():
+            if seen_hi < code <= hi:
+                hi = code - 1
+            elif lo <= code < seen_lo:
+                lo = code + 1
+            elif lo <= code <= hi:
+                strict = True
     var = Var(name, "number", present, value, nr, integer=integer)
     return Column(var, [col], "number" if integer else "decimal", lo=lo, hi=hi, strict=strict)
 

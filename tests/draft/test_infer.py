@@ -34,6 +34,7 @@ def test_types_lists_and_nonresponse() -> None:
         "likes": like,
         "trips": trips,
         "age": age,
+        "old": rng.integers(16, 96, size=n).tolist(),
         "pets_1": rng.integers(0, 2, size=n).tolist(),
         "pets_2": rng.integers(0, 2, size=n).tolist(),
         "score_1": rng.integers(1, 6, size=n).tolist(),
@@ -52,6 +53,7 @@ def test_types_lists_and_nonresponse() -> None:
     assert by["trips"].kind == "number" and by["trips"].strict and (by["trips"].lo, by["trips"].hi) == (0, 2000)
     assert by["age"].kind == "number" and not by["age"].strict and bool(by["age"].var.nr[1])
     assert (by["age"].lo, by["age"].hi) == (10, 90)
+    assert (by["old"].lo, by["old"].hi) == (10, 97) and not by["old"].strict  # 100 would swallow 98 and 99
     assert by["pets"].kind == "multi" and by["pets"].columns == ["pets_1", "pets_2"]
     assert by["score_1"].kind == "single"  # one NAME_N column alone is no group
     assert by["hours"].kind == "decimal" and (by["hours"].lo, by["hours"].hi) == (0, 8)
