@@ -62,11 +62,10 @@ class Inferred:
     renamed: dict[str, str]  # spec name -> export column, where the column name is not a valid name
 
 
-def spec_name(column: str, taken: set[str]) -> str:
-    """A valid, unused spec name for an export column."""
-    name = re.sub(r"[^a-z0-9_]", "_", column.strip().lower()) or "column"
+def _unused(name: str, prefix: str, taken: set[str]) -> str:
+    """`name` made a valid spec name (not starting with a digit, not a keyword) and unused."""
     if not re.match(r"[a-z_]", name):
-        name = "q_" + name
+        name = prefix + name
     if name in RESERVED:
         name += "_"
     base, i = name, 2
@@ -74,20 +73,16 @@ def spec_name(column: str, taken: set[str]) -> str:
         name, i = f"{base}_{i}", i + 1
     taken.add(name)
     return name
+
+
+def spec_name(column: str, taken: set[str]) -> str:
+    """A valid, unused spec name for an export column."""
+    return _unused(re.sub(r"[^a-z0-9_]", "_", column.strip().lower()) or "column", "q_", taken)
 
 
 def label_name(text: str, taken: set[str]) -> str:
     """A code label for an answer text (`Strongly agree` -> `strongly_agree`)."""
-    name = re.sub(r"[^a-z0-9]+", "_", text.strip().lower()).strip("_")[:24].strip("_") or "answer"
-    if not re.match(r"[a-z_]", name):
-        name = "a_" + name
-    if name in RESERVED:
-        name += "_"
-    base, i = name, 2
-    while name in taken:
-        name, i = f"{base}_{i}", i + 1
-    taken.add(name)
-    return name
+    return _unused(re.sub(r"[^a-z0-9]+", "_", text.strip().lower()).strip("_")[:24].strip("_") or "answer", "a_", taken)
 
 
 def read_table(path: str | Path, encoding: str | None = None) -> pa.Table:

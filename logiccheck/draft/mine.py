@@ -185,9 +185,7 @@ def _best_literal(v: Var, w: np.ndarray, a: np.ndarray) -> tuple[int, Literal] |
 
     if v.kind == "coded" and v.options:
         k = len(v.options)
-        idx = v.code_index()
-        pos = np.bincount(idx[wa], minlength=k + 1)
-        neg = np.bincount(idx[wn], minlength=k + 1)
+        pos, neg = _per_value(v.code_index(), k, wa, wn)
         take = pos[:k] > neg[:k]
         if take.any():
             err = int(neg[:k][take].sum() + pos[:k][~take].sum() + pos[k])
@@ -200,8 +198,7 @@ def _best_literal(v: Var, w: np.ndarray, a: np.ndarray) -> tuple[int, Literal] |
         uniq, idx = v.numbers()
         m = len(uniq)
         if m >= 2:
-            pos = np.bincount(idx[wa], minlength=m + 1)
-            neg = np.bincount(idx[wn], minlength=m + 1)
+            pos, neg = _per_value(idx, m, wa, wn)
             for err, op, cut in _thresholds(pos[:m], neg[:m], int(pos[m]), uniq):
                 consider(int(err), Literal(v.name, op, (cut,)))
     elif v.kind == "multi" and v.chosen is not None and v.options:
@@ -215,6 +212,11 @@ def _best_literal(v: Var, w: np.ndarray, a: np.ndarray) -> tuple[int, Literal] |
         err = int((wa & ~v.present).sum() + (wn & v.present).sum())
         consider(err, Literal(v.name, "answered"))
     return best
+
+
+def _per_value(idx: np.ndarray, k: int, wa: np.ndarray, wn: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Answered and blank rows per value index (slot k: no usable value)."""
+    return np.bincount(idx[wa], minlength=k + 1), np.bincount(idx[wn], minlength=k + 1)
 
 
 def _thresholds(pos: np.ndarray, neg: np.ndarray, none_pos: int, values: np.ndarray) -> list[tuple[int, str, float]]:
@@ -241,9 +243,7 @@ def _anchors(v: Var, w: np.ndarray, a: np.ndarray) -> list[Literal]:
     out: list[Literal] = []
     if v.kind == "coded" and v.options:
         k = len(v.options)
-        idx = v.code_index()
-        pos = np.bincount(idx[wa], minlength=k + 1)[:k]
-        neg = np.bincount(idx[wn], minlength=k + 1)[:k]
+        pos, neg = (x[:k] for x in _per_value(v.code_index(), k, wa, wn))
         rate = pos / np.maximum(pos + neg, 1)
         lift = rate > base
         if lift.any():
@@ -253,8 +253,7 @@ def _anchors(v: Var, w: np.ndarray, a: np.ndarray) -> list[Literal]:
         uniq, idx = v.numbers()
         m = len(uniq)
         if m >= 2:
-            pos = np.bincount(idx[wa], minlength=m + 1)
-            neg = np.bincount(idx[wn], minlength=m + 1)
+            pos, neg = _per_value(idx, m, wa, wn)
             for _err, op, cut in _thresholds(pos[:m] / n_pos, neg[:m] / n_neg, pos[m] / n_pos, uniq):
                 out.append(Literal(v.name, op, (cut,)))
     elif v.kind == "multi" and v.chosen is not None and v.options:
