@@ -361,7 +361,9 @@ def decode(plan: NamePlan, d: Distinct, mapping: DataMapping) -> tuple[Distinct,
     """The distinct texts as the judge reads them: answer labels as their codes (per the
     mapping's `values`), decimal commas as points. Also, per text, whether it is a word
     that matches no label (None when labels are not read)."""
-    read_labels = mapping.values != "codes" and bool(plan.answers) and plan.allowed is not None
+    # Number items read their non-response labels ("Don't know") too.
+    read_labels = mapping.values != "codes" and bool(plan.answers)
+    coded = plan.allowed is not None
     if not read_labels and mapping.decimal == ".":
         return d, None
     texts = d.texts
@@ -376,7 +378,7 @@ def decode(plan: NamePlan, d: Distinct, mapping: DataMapping) -> tuple[Distinct,
             numeric = _is_number(t)
             if code is not None and (mapping.values == "labels" or not numeric):
                 t = str(code)
-            elif not numeric and t:
+            elif not numeric and t and coded:
                 unmatched[i] = True
         out.append(t)
     return Distinct(pa.array(out, pa.string()), d.index), (unmatched if read_labels else None)

@@ -295,20 +295,29 @@ def search(earlier: Sequence[Var], answered: np.ndarray, alive: np.ndarray) -> C
     if first is None or not _worth(base, first[0], n):
         return Condition()
     best_err, best = first[0], Condition((first[1],))
-    # A second literal: inside the rows each promising first literal keeps.
+    # A second literal: inside the rows each promising first literal keeps. Every literal
+    # needs a value, so a pair misses at least the answered rows outside either column's
+    # values: halves that miss more than a worthwhile pair may err are not tried.
+    limit = best_err - max(MIN_GAIN_ROWS, MIN_GAIN_SHARE * n, MIN_GAIN_RELATIVE * best_err) + tie
     pairs: list[tuple[int, Literal, Var, Literal, Var]] = []
     n_pos, n_neg = max(int(a.sum()), 1), max(int((alive & ~a).sum()), 1)
     scored = []
     for v in earlier:
+        if int((a & ~v.present).sum()) > limit:
+            continue
         for lit in {*_anchors(v, alive, a), *(s[1] for s in singles if s[2] is v)}:
             keep = lit.mask(v) & alive
-            balanced = int((a & ~keep).sum()) / n_pos + int((keep & ~a).sum()) / n_neg
-            scored.append((balanced, lit.rank, v.position, lit, v, keep))
+            missed = int((a & ~keep).sum())  # answered, but the first literal says not asked
+            if missed > limit:
+                continue
+            balanced = missed / n_pos + int((keep & ~a).sum()) / n_neg
+            scored.append((balanced, lit.rank, v.position, lit, v, keep, missed))
     scored.sort(key=lambda t: (*t[:3], t[3].op, t[3].codes))  # a total order: runs repeat exactly
-    for _b, _r, _p, lit1, v1, keep in scored[:ANCHORS]:
-        missed = int((a & ~keep).sum())  # answered, but the first literal says not asked
-        for v2 in earlier:
-            if v2 is v1:
+    absent = ~np.column_stack([v.present for v in earlier])
+    for _b, _r, _p, lit1, v1, keep, missed in scored[:ANCHORS]:
+        floor = missed + np.count_nonzero(absent & (a & keep)[:, None], axis=0)
+        for j, v2 in enumerate(earlier):
+            if v2 is v1 or floor[j] > limit:
                 continue
             got = _best_literal(v2, keep, a)
             if got is not None:

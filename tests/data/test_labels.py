@@ -95,12 +95,13 @@ def test_labels_trimmed_and_case_free_nonresponse_and_delimited_multi(tmp_path: 
         {"id": 1, "likes": " strongly AGREE ", "topics": "Languages; Computing", "hours": "2,5"},
         {"id": 2, "likes": "don't know", "topics": "art", "hours": "10"},
         {"id": 3, "likes": "2", "topics": "1;3", "hours": "0,25"},
+        {"id": 4, "likes": "DISAGREE", "topics": "Computing", "hours": "Don't know"},
     ]
     r = _run(rows, tmp_path, values="auto", decimal=",", multi={"layout": "delimited"})
     assert _key(r) == []
-    assert r.frame["likes"].tolist() == [4.0, 98.0, 2.0]
-    assert r.frame[["topics_1", "topics_2", "topics_3"]].to_numpy().tolist() == [[1, 1, 0], [0, 0, 1], [1, 0, 1]]
-    assert r.frame["hours"].tolist() == [2.5, 10.0, 0.25]
+    assert r.frame["likes"].tolist() == [4.0, 98.0, 2.0, 2.0]
+    assert r.frame[["topics_1", "topics_2", "topics_3"]].to_numpy().tolist() == [[1, 1, 0], [0, 0, 1], [1, 0, 1], [0, 1, 0]]
+    assert r.frame["hours"].tolist() == [2.5, 10.0, 0.25, 98.0]
 
 
 def test_a_cell_matching_no_label_is_invalid_with_a_did_you_mean(tmp_path: Path) -> None:
