@@ -234,6 +234,9 @@ def _numeric(name: str, col: str, present: np.ndarray, value: np.ndarray, nonres
         if len(codes) > CODED_DISTINCT:
             codes = [int(v) for v in uniq]
         var = Var(name, "coded", present, value, nr, options=codes, labels={c: f"c{c}" for c in codes})
+        # A code equal to a non-response code (8 on a 0..10 scale beside 8 = don't know)
+        # is an answer here: the item is strict, so the two never collide.
+        strict = strict or bool(set(codes) & set(nonresponse))
         return Column(var, [col], "single", {c: str(c) for c in codes}, strict=strict)
     seen_lo, seen_hi = (float(uniq.min()), float(uniq.max())) if len(uniq) else (0.0, 0.0)
     lo, hi = _round_out(seen_lo, seen_hi)

@@ -63,6 +63,23 @@ def test_types_lists_and_nonresponse() -> None:
     assert by["remark"].kind == "text"
 
 
+def test_a_scale_reaching_the_nonresponse_codes_is_strict_and_lints_clean() -> None:
+    from logiccheck.checks.runner import run_checks
+    from logiccheck.loader import load_text
+
+    rng = np.random.default_rng(1)
+    n = 300
+    table = _table({
+        "a": rng.choice([1, 2, 8, 9], size=n).tolist(),
+        "b": rng.choice([1, 2, 3, 8, 9], size=n).tolist(),
+        "scale": rng.integers(0, 11, size=n).tolist(),
+    })
+    d = draft_table(table, "s.csv")
+    assert d.inferred.nonresponse == [8, 9]
+    assert "scale: single" in d.text and d.text.split("scale: single", 1)[1].splitlines()[0].endswith("strict")
+    assert [x.check for x in run_checks(load_text(d.text, "s.qlc")) if x.severity.value == "error"] == []
+
+
 def test_names_are_made_valid_and_unique() -> None:
     taken: set[str] = set()
     assert [spec_name(c, taken) for c in ["Q 1", "2nd", "when", "q_1"]] == ["q_1", "q_2nd", "when_", "q_1_2"]
