@@ -233,7 +233,9 @@ def _numeric(name: str, col: str, present: np.ndarray, value: np.ndarray, nonres
         codes = list(range(int(uniq.min()), int(uniq.max()) + 1))
         if len(codes) > CODED_DISTINCT:
             codes = [int(v) for v in uniq]
-        var = Var(name, "coded", present, value, nr, options=codes, labels={c: f"c{c}" for c in codes})
+        nr_seen = [int(c) for c in nonresponse if as_nr]
+        var = Var(name, "coded", present, value, nr, options=codes, nr_codes=nr_seen,
+                  labels={**{c: f"c{c}" for c in codes}, **{c: f"nr{c}" for c in nr_seen}})
         # A code equal to a non-response code (8 on a 0..10 scale beside 8 = don't know)
         # is an answer here: the item is strict, so the two never collide.
         strict = strict or bool(set(codes) & set(nonresponse))

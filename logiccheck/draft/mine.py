@@ -46,24 +46,30 @@ class Var:
     nr: np.ndarray | None = None  # bool: the value is a non-response code
     chosen: np.ndarray | None = None  # n × options, for multi
     options: list[int] = field(default_factory=list)  # codes (coded) or option values (multi)
+    # Non-response codes valid here (coded): a set may name them (`x in (yes, dk)`), a
+    # threshold never does (an ordering comparison on them is unknown).
+    nr_codes: list[int] = field(default_factory=list)
     labels: dict[int, str] = field(default_factory=dict)  # code or option -> label name
     integer: bool = True
     position: int = 0  # order in the questionnaire (earlier = smaller)
-    _index: np.ndarray | None = None  # per row: code position, len(options) for none
+    _index: np.ndarray | None = None  # per row: code position (codes, then non-response codes); none last
     _uniq: tuple[np.ndarray, np.ndarray] | None = None  # distinct substantive numbers, per-row index
+
+    @property
+    def all_codes(self) -> list[int]:
+        return [*self.options, *self.nr_codes]
 
     def code_index(self) -> np.ndarray:
         if self._index is None:
-            k = len(self.options)
+            codes = self.all_codes
+            k = len(codes)
             idx = np.full(len(self.present), k, dtype=np.intp)
             if self.value is not None and k:
-                ok = self.present & ~self._nr() & ~np.isnan(self.value)
-                codes = np.asarray(self.options, dtype=np.float64)
-                pos = np.searchsorted(codes, self.value[ok])
-                pos = np.minimum(pos, k - 1)
-                hit = codes[pos] == self.value[ok]
-                rows = np.flatnonzero(ok)
-                idx[rows[hit]] = pos[hit]
+                ok = self.present & ~np.isnan(self.value)
+                where = {float(c): i for i, c in enumerate(codes)}
+                uniq, inv = np.unique(self.value[ok], return_inverse=True)
+                slot = np.array([where.get(float(u), k) for u in uniq.tolist()], dtype=np.intp)
+                idx[ok] = slot[inv.reshape(-1)] if len(uniq) else k
             self._index = idx
         return self._index
 
@@ -88,7 +94,7 @@ class Var:
             None if self.value is None else self.value[rows],
             None if self.nr is None else self.nr[rows],
             None if self.chosen is None else self.chosen[rows],
-            self.options, self.labels, self.integer, self.position,
+            self.options, self.nr_codes, self.labels, self.integer, self.position,
         )
 
 
@@ -107,10 +113,10 @@ class Literal:
             assert v.chosen is not None
             return v.chosen[:, v.options.index(int(self.codes[0]))].copy()
         assert v.value is not None
+        if self.op == "in":
+            return v.present & np.isin(v.value, np.asarray(self.codes))
         nr = v.nr if v.nr is not None else np.zeros(len(v.present), dtype=bool)
         ok = v.present & ~nr & ~np.isnan(v.value)
-        if self.op == "in":
-            return ok & np.isin(v.value, np.asarray(self.codes))
         with np.errstate(invalid="ignore"):
             if self.op == "ge":
                 return ok & (v.value >= self.codes[0])
@@ -184,15 +190,16 @@ def _best_literal(v: Var, w: np.ndarray, a: np.ndarray) -> tuple[int, Literal] |
             best = (err, lit)
 
     if v.kind == "coded" and v.options:
-        k = len(v.options)
-        pos, neg = _per_value(v.code_index(), k, wa, wn)
-        take = pos[:k] > neg[:k]
-        if take.any():
-            err = int(neg[:k][take].sum() + pos[:k][~take].sum() + pos[k])
-            consider(err, Literal(v.name, "in", tuple(float(c) for c, t in zip(v.options, take.tolist(), strict=True) if t)))
+        codes = v.all_codes
+        k, m = len(v.options), len(codes)
+        pos, neg = _per_value(v.code_index(), m, wa, wn)
+        take = pos[:m] > neg[:m]
+        if take[:k].any():
+            err = int(neg[:m][take].sum() + pos[:m][~take].sum() + pos[m])
+            consider(err, Literal(v.name, "in", tuple(float(c) for c, t in zip(codes, take.tolist(), strict=True) if t)))
         if k >= 3:
             # Codes are ordered: a threshold reads better than a long set where it fits as well.
-            for err, op, code in _thresholds(pos[:k], neg[:k], int(pos[k]), np.asarray(v.options, dtype=np.float64)):
+            for err, op, code in _thresholds(pos[:k], neg[:k], int(pos[k:].sum()), np.asarray(v.options, dtype=np.float64)):
                 consider(int(err), Literal(v.name, op, (code,)))
     elif v.kind == "number" and v.value is not None:
         uniq, idx = v.numbers()
@@ -242,13 +249,14 @@ def _anchors(v: Var, w: np.ndarray, a: np.ndarray) -> list[Literal]:
     base = n_pos / (n_pos + n_neg)
     out: list[Literal] = []
     if v.kind == "coded" and v.options:
-        k = len(v.options)
-        pos, neg = (x[:k] for x in _per_value(v.code_index(), k, wa, wn))
+        codes = v.all_codes
+        m = len(codes)
+        pos, neg = (x[:m] for x in _per_value(v.code_index(), m, wa, wn))
         rate = pos / np.maximum(pos + neg, 1)
         lift = rate > base
-        if lift.any():
-            out.append(Literal(v.name, "in", tuple(float(c) for c, t in zip(v.options, lift.tolist(), strict=True) if t)))
-            out += [Literal(v.name, "in", (float(c),)) for c, t in zip(v.options, lift.tolist(), strict=True) if t]
+        if lift[: len(v.options)].any():
+            out.append(Literal(v.name, "in", tuple(float(c) for c, t in zip(codes, lift.tolist(), strict=True) if t)))
+            out += [Literal(v.name, "in", (float(c),)) for c, t in zip(v.options, lift.tolist(), strict=False) if t]
     elif v.kind == "number" and v.value is not None:
         uniq, idx = v.numbers()
         m = len(uniq)
@@ -386,10 +394,10 @@ def stop_literal(v: Var, dead: np.ndarray, alive: np.ndarray) -> Literal | None:
         return None
     rest_goes_on: Callable[[np.ndarray], bool] = lambda lit: int((w & ~lit & ~dead).sum()) >= 0.5 * int((w & ~lit).sum()) and (w & ~lit).any()  # noqa: E731
     if v.kind == "coded" and v.options:
-        k = len(v.options)
+        k, m = len(v.options), len(v.all_codes)
         idx = v.code_index()
-        cnt = np.bincount(idx[w], minlength=k + 1)[:k]
-        dd = np.bincount(idx[w & dead], minlength=k + 1)[:k]
+        cnt = np.bincount(idx[w], minlength=m + 1)[:k]
+        dd = np.bincount(idx[w & dead], minlength=m + 1)[:k]
         take = (cnt >= min(support, STOP_MIN_ROWS)) & (cnt - dd <= _slack(cnt))
         if take.any() and cnt[take].sum() >= support:
             lit = Literal(v.name, "in", tuple(float(c) for c, t in zip(v.options, take.tolist(), strict=True) if t))

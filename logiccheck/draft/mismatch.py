@@ -33,9 +33,10 @@ def context_vars(ctx: DataContext) -> list[Var]:
         if kind == "single" and codes is not None:
             value = np.where(usable, ctx.value_of(name), np.nan)
             opts = sorted(o.value for o in codes.options)
-            labels = {o.value: o.label for o in codes.options}
-            out.append(Var(name, "coded", usable, value, ctx.nonresponse[:, j] & usable, options=opts, labels=labels,
-                           position=j))
+            nr = [o for o in q.nonresponse] if q.allows_nonresponse(stmt) else []
+            labels = {o.value: o.label for o in [*codes.options, *nr]}
+            out.append(Var(name, "coded", usable, value, ctx.nonresponse[:, j] & usable, options=opts,
+                           nr_codes=[o.value for o in nr], labels=labels, position=j))
         elif kind in ("number", "decimal"):
             value = np.where(usable, ctx.value_of(name), np.nan)
             out.append(Var(name, "number", usable, value, ctx.nonresponse[:, j] & usable, integer=kind == "number",

@@ -7,6 +7,7 @@ from pathlib import Path
 
 import numpy as np
 import pyarrow as pa
+import pyarrow.csv
 
 from logiccheck.draft import draft_table
 from logiccheck.draft.infer import infer, spec_name
@@ -123,3 +124,22 @@ def test_cli_unreadable_export_is_one_line_and_exit_2(tmp_path: Path) -> None:
     ran = run_cli("draft", "--data", str(bad))
     assert ran.returncode == 2 and "--encoding" in ran.stderr
     assert run_cli("draft", "--data", str(bad), "--encoding", "latin-1").returncode == 0
+
+
+def test_a_condition_true_for_nonresponse_codes_is_drafted_with_them(tmp_path: Path) -> None:
+    from logiccheck.data import DataMapping, validate
+    from logiccheck.data.simulate import simulate, write_csv
+    from logiccheck.loader import load_text
+
+    spec = (
+        'survey s "S"\ncodes yn\n  yes = 1 "Yes"\n  no = 2 "No"\nnonresponse\n  dk = 98 "DK"\n  refused = 99 "Refused"\n'
+        'used: single yn "Used?" gate\nlike: single yn "Liked?" gate\nmore: single yn "More?" when used != no\n'
+    )
+    q = load_text(spec, "s.qlc").questionnaire
+    path = tmp_path / "e.csv"
+    write_csv(simulate(q, 3000, seed=4).table, path)
+    d = draft_table(pa.csv.read_csv(path), "e.csv")
+    assert "more: single" in d.text and "when used in (c1, nr98, nr99)" in d.text
+    real = validate(q, path, DataMapping()).table.set_index("item")["expected"]
+    ours = validate(load_text(d.text, "d.qlc").questionnaire, path, DataMapping()).table.set_index("item")["expected"]
+    assert abs(int(real["more"]) - int(ours["more"])) <= 30
