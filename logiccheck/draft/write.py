@@ -5,6 +5,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
+import numpy as np
+
 from logiccheck.draft.infer import Column, Inferred, label_name
 from logiccheck.draft.mine import Condition, Literal, Var
 
@@ -86,21 +88,35 @@ def render(source: str, inferred: Inferred, routed: list[Routed]) -> str:
         lines.append("")
     section: Condition | None = None
     parts = 0
+    masks: dict[Condition, np.ndarray] = {}
+
+    def within(cond: Condition, outer: Condition) -> bool:
+        """The condition holds (almost) only where the section's does: the item may sit
+        in the section with its own `when`, and the two together route as it alone."""
+        if cond == outer:
+            return True
+        if not cond.literals:
+            return False
+        for c in (cond, outer):
+            if c not in masks:
+                masks[c] = c.mask(vars_, inferred.rows)
+        return int((masks[cond] & ~masks[outer]).sum()) <= max(2, int(0.001 * inferred.rows))
+
     for i, r in enumerate(routed):
         cond = r.condition
-        nxt = routed[i + 1].condition if i + 1 < len(routed) else None
-        opens = cond.literals and cond != section and nxt == cond and r.stop is None
-        if section is not None and cond != section:
+        if section is not None and not within(cond, section):
             section = None
             lines.append("")
-        if opens:
+        nxt = routed[i + 1].condition if i + 1 < len(routed) else None
+        if section is None and cond.literals and nxt is not None and within(nxt, cond) and r.stop is None:
             parts += 1
             section = cond
             lines.append(f"section part_{parts} {_q(f'Part {parts}')} when {cond.text(vars_)}")
         indent = "  " if section is not None else ""
-        lines.append(f"{indent}# {_explains(r, section is not None)}")
+        shared_cond = section is not None and cond == section
+        lines.append(f"{indent}# {_explains(r, shared_cond)}")
         lines += [f"{indent}# {note}" for note in r.notes]
-        lines.append(indent + _item(r, vars_, shared, read, section is not None))
+        lines.append(indent + _item(r, vars_, shared, read, shared_cond))
         if r.stop is not None:
             section = None
             name = f"out_{r.column.var.name}"

@@ -61,6 +61,10 @@ def test_draft_routes_at_least_15_of_17_items_as_the_real_spec(codes_export: Pat
     assert "when grows has c5" in text
     assert "when years >= 3 and shed = c1" in text
     assert "when water = c1" in text  # the planted off-route answers did not move it
+    # The plot section comes back as one section, its follow-ups inside with their own `when`.
+    assert "section part_1 \"Part 1\" when holds_plot = c1" in text
+    inside = text.split("section part_1", 1)[1].split("\n\n", 1)[0]
+    assert all(f"\n  {name}:" in inside for name in ITEMS[2:10])
 
 
 def test_labels_export_gives_the_same_table_and_dispositions(codes_export: Path, tmp_path: Path) -> None:
