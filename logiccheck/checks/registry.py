@@ -29,6 +29,7 @@ CHECK_MODULES = (
     "logiccheck.data.checks",
     "logiccheck.quality.checks",
     "logiccheck.weights.checks",
+    "logiccheck.draft.mismatch",
 )
 
 
