@@ -38,6 +38,8 @@ COMMANDS: dict[str, tuple[str, str]] = {
               "Apply a cleaning policy to an export; write the cleaned file and an audit trail."),
     "rates": ("logiccheck.cli.rates:rates_command",
               "Response, cooperation, refusal and contact rates from final case outcomes."),
+    "draft": ("logiccheck.cli.draft:draft_command",
+              "Write a starting spec from an export: items, answer lists and the routing the answers follow."),
 }
 
 
