@@ -1,0 +1,302 @@
+"""Exact copies and near-copies of answer vectors without comparing every pair.
+
+Answers are a respondents × items matrix of small integer codes (0 = blank; non-response
+codes are answers like any other). Two respondents are compared on the items BOTH
+answered: `compared` of them, `matched` with the same code. Their percent match is
+matched / compared (Kuriakose & Robbins 2016 compare respondents this way, over every
+item; here blanks never match). A respondent's maximum percent match is the largest
+over all others.
+
+`near_pairs` finds every pair with compared >= `min_items` and matched / compared >
+`threshold`, exactly, by a pigeonhole argument in the manner of multi-index hashing
+(Norouzi, Punjani & Fleet, "Fast exact search in Hamming space with multi-index
+hashing", 2014), adapted to blanks:
+
+* Split the items into blocks of at most s = floor(1 / (1 - threshold)) items.
+  For a pair, let C_j and M_j be the compared and matching items in block j. If
+  M > t·C then sum_j (M_j - t·C_j) > 0, so some block has M_j > t·C_j, hence
+  C_j >= 1; and since C_j <= s <= 1 / (1 - t), one mismatch would give
+  M_j <= C_j - 1 <= t·C_j. So some block has at least one compared item and no
+  mismatch.
+* In that block the two respondents' answered patterns P and Q may differ; they agree
+  on every item of T = P ∩ Q (not empty). Respondents with the same pattern are
+  grouped by their codes on the block; respondents with different patterns P != Q are
+  joined on their codes over P ∩ Q. Either way the pair meets as a candidate.
+* Candidates are then compared exactly (compared, matched), so hash collisions only
+  cost time, never a wrong answer.
+
+Work grows with the candidates, not with the square of the respondents: on answers
+with some spread (five-point items) a block of six codes is shared by chance rarely.
+Blocks are formed from items the routing asks of the same respondents (same answered
+column), so patterns inside a block are mostly all-or-nothing.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Iterator
+from dataclasses import dataclass
+
+import numpy as np
+
+_MIX = np.uint64(0x9E3779B97F4A7C15)
+_MUL = np.uint64(0xBF58476D1CE4E5B9)
+# Pairs generated per batch before they are checked: bounds memory (two int64 per pair
+# plus two rows of codes per pair while checking).
+PAIR_BATCH = 1 << 20
+
+
+@dataclass
+class Pairs:
+    """Pairs of rows (a < b) with their compared and matching item counts."""
+
+    a: np.ndarray
+    b: np.ndarray
+    compared: np.ndarray
+    matched: np.ndarray
+
+    @property
+    def score(self) -> np.ndarray:
+        return self.matched / np.maximum(self.compared, 1)
+
+
+def block_size(threshold: float) -> int:
+    """The largest block size for which the pigeonhole argument holds (s·(1 - t) <= 1);
+    a hair under the exact bound, so rounding can only make blocks smaller."""
+    if threshold >= 1:
+        return 0
+    return max(1, math.floor(1 / (1 - threshold) - 1e-9))
+
+
+def hash_rows(codes: np.ndarray) -> np.ndarray:
+    """One 64-bit hash per row of a small-integer matrix (equal rows, equal hashes)."""
+    h = np.full(codes.shape[0], 0x84222325, dtype=np.uint64)
+    with np.errstate(over="ignore"):
+        for j in range(codes.shape[1]):
+            h ^= codes[:, j].astype(np.uint64) + _MIX + (h << np.uint64(6)) + (h >> np.uint64(2))
+            h *= _MUL
+    return h
+
+
+def runs(sorted_keys: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Start and length of every run of equal values in a sorted array."""
+    if sorted_keys.size == 0:
+        return np.zeros(0, np.int64), np.zeros(0, np.int64)
+    edge = np.flatnonzero(sorted_keys[1:] != sorted_keys[:-1]) + 1
+    starts = np.concatenate([[0], edge])
+    return starts, np.diff(np.concatenate([starts, [sorted_keys.size]]))
+
+
+def groups_of(keys: np.ndarray, rows: np.ndarray) -> Iterator[np.ndarray]:
+    """Rows sharing a key, groups of two or more, in order of their first row."""
+    order = np.lexsort((rows, keys))
+    starts, lengths = runs(keys[order])
+    big = lengths > 1
+    for s, g in sorted(zip(starts[big].tolist(), lengths[big].tolist(), strict=True), key=lambda t: rows[order[t[0]]]):
+        yield rows[order[s : s + g]]
+
+
+def _pairs_within(members: np.ndarray, starts: np.ndarray, lengths: np.ndarray) -> Iterator[tuple[np.ndarray, np.ndarray]]:
+    """Every pair inside each run (members already in run order), in bounded batches."""
+    keep = lengths > 1
+    starts, lengths = starts[keep], lengths[keep]
+    per_run = lengths * (lengths - 1) // 2
+    i = 0
+    while i < starts.size:
+        # Take runs until the batch is full (at least one run, however large).
+        total = np.cumsum(per_run[i:])
+        j = i + max(1, int(np.searchsorted(total, PAIR_BATCH, side="right")))
+        for s, g in zip(starts[i:j].tolist(), lengths[i:j].tolist(), strict=True):
+            if g * (g - 1) // 2 > PAIR_BATCH:
+                yield from _big_run(members[s : s + g])
+                continue
+            left, right = np.triu_indices(g, 1)
+            yield members[s + left], members[s + right]
+        i = j
+
+
+def _big_run(members: np.ndarray) -> Iterator[tuple[np.ndarray, np.ndarray]]:
+    """Pairs of one very large run, a slice of first members at a time."""
+    g = members.size
+    step = max(1, PAIR_BATCH // g)
+    for r0 in range(0, g - 1, step):
+        first = np.arange(r0, min(r0 + step, g - 1))
+        after = g - 1 - first  # partners of each first member
+        left = np.repeat(first, after)
+        offset = np.arange(left.size) - np.repeat(np.cumsum(after) - after, after)
+        yield members[left], members[left + 1 + offset]
+
+
+def _pairs_across(
+    keys_p: np.ndarray, rows_p: np.ndarray, keys_q: np.ndarray, rows_q: np.ndarray
+) -> Iterator[tuple[np.ndarray, np.ndarray]]:
+    """Every (p, q) with equal keys, p from one set and q from the other."""
+    op, oq = np.argsort(keys_p, kind="stable"), np.argsort(keys_q, kind="stable")
+    kp, kq = keys_p[op], keys_q[oq]
+    common = np.intersect1d(kp, kq, assume_unique=False)
+    if common.size == 0:
+        return
+    lo_p, hi_p = np.searchsorted(kp, common, "left"), np.searchsorted(kp, common, "right")
+    lo_q, hi_q = np.searchsorted(kq, common, "left"), np.searchsorted(kq, common, "right")
+    for a0, a1, b0, b1 in zip(lo_p.tolist(), hi_p.tolist(), lo_q.tolist(), hi_q.tolist(), strict=True):
+        left = rows_p[op[a0:a1]]
+        right = rows_q[oq[b0:b1]]
+        step = max(1, PAIR_BATCH // max(1, right.size))
+        for s in range(0, left.size, step):
+            part = left[s : s + step]
+            yield np.repeat(part, right.size), np.tile(right, part.size)
+
+
+def blocks_for(codes: np.ndarray, size: int) -> list[np.ndarray]:
+    """Column blocks of at most `size`: columns answered by the same respondents (the
+    routing asks them together) go together, so patterns inside a block rarely differ."""
+    m = codes.shape[1]
+    if m == 0 or size <= 0:
+        return []
+    answered = codes != 0
+    signature = hash_rows(np.ascontiguousarray(answered.T).astype(np.uint8))
+    order = np.lexsort((np.arange(m), signature))
+    out: list[np.ndarray] = []
+    starts, lengths = runs(signature[order])
+    for s, g in zip(starts.tolist(), lengths.tolist(), strict=True):
+        cols = order[s : s + g]
+        out.extend(cols[i : i + size] for i in range(0, g, size))
+    return out
+
+
+def candidate_pairs(codes: np.ndarray, rows: np.ndarray, size: int) -> Iterator[tuple[np.ndarray, np.ndarray]]:
+    """Batches of candidate pairs (rows of `codes`): a superset of every pair that agrees
+    on all items both answered inside some block and has one such item (see the module
+    docs). Pairs may repeat across batches."""
+    for cols in blocks_for(codes[rows], size):
+        sub = codes[np.ix_(rows, cols)]
+        pattern = ((sub != 0).astype(np.int64) << np.arange(len(cols), dtype=np.int64)).sum(axis=1)
+        live = pattern != 0
+        keys = hash_rows(sub)
+        # Same pattern, same codes on the block.
+        member = rows[live]
+        order = np.lexsort((member, keys[live]))
+        starts, lengths = runs(keys[live][order])
+        yield from _pairs_within(member[order], starts, lengths)
+        # Different patterns: joined on the codes of the items both answered.
+        present = np.unique(pattern[live])
+        for ip, p in enumerate(present.tolist()):
+            in_p = pattern == p
+            for qv in present[ip + 1 :].tolist():
+                common = p & qv
+                if common == 0:
+                    continue
+                shared = [k for k in range(len(cols)) if common >> k & 1]
+                in_q = pattern == qv
+                yield from _pairs_across(
+                    hash_rows(sub[np.ix_(in_p, shared)]), rows[in_p], hash_rows(sub[np.ix_(in_q, shared)]), rows[in_q]
+                )
+
+
+def compare_pairs(codes: np.ndarray, a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Compared and matching item counts of each pair, exactly."""
+    compared = np.empty(a.size, np.int64)
+    matched = np.empty(a.size, np.int64)
+    step = max(1, (1 << 24) // max(1, codes.shape[1]))
+    for s in range(0, a.size, step):
+        x, y = codes[a[s : s + step]], codes[b[s : s + step]]
+        both = (x != 0) & (y != 0)
+        compared[s : s + step] = both.sum(axis=1)
+        matched[s : s + step] = (both & (x == y)).sum(axis=1)
+    return compared, matched
+
+
+def near_pairs(codes: np.ndarray, threshold: float, min_items: int) -> Pairs:
+    """Every pair of rows compared on at least `min_items` items with a percent match
+    above `threshold`, exactly (see the module docs)."""
+    size = block_size(threshold)
+    rows = np.flatnonzero((codes != 0).sum(axis=1) >= max(1, min_items))
+    found: list[tuple[np.ndarray, ...]] = []
+    if size and rows.size > 1:
+        seen = np.zeros(0, np.int64)
+        n = np.int64(codes.shape[0])
+        for a, b in candidate_pairs(codes, rows, size):
+            lo, hi = np.minimum(a, b), np.maximum(a, b)
+            key = np.unique(lo.astype(np.int64) * n + hi)
+            key = key[~np.isin(key, seen, assume_unique=True)] if seen.size else key
+            if key.size == 0:
+                continue
+            lo, hi = key // n, key % n
+            compared, matched = compare_pairs(codes, lo, hi)
+            keep = (compared >= min_items) & (matched / np.maximum(compared, 1) > threshold)
+            if keep.any():
+                found.append((lo[keep], hi[keep], compared[keep], matched[keep]))
+                seen = np.union1d(seen, key[keep])
+    if not found:
+        empty = np.zeros(0, np.int64)
+        return Pairs(empty, empty, empty, empty)
+    a, b, c, m = (np.concatenate(parts) for parts in zip(*found, strict=True))
+    order = np.lexsort((b, a))
+    return Pairs(a[order], b[order], c[order], m[order])
+
+
+@dataclass
+class Best:
+    """Per respondent: the best partner among the pairs found (-1: none), its score and
+    the number of items compared."""
+
+    partner: np.ndarray
+    score: np.ndarray
+    compared: np.ndarray
+
+
+def best_partners(pairs: Pairs, n: int) -> Best:
+    """Each respondent's highest-scoring pair; ties go to the partner on the earliest row."""
+    partner = np.full(n, -1, np.int64)
+    score = np.full(n, np.nan)
+    compared = np.zeros(n, np.int64)
+    if pairs.a.size:
+        me = np.concatenate([pairs.a, pairs.b])
+        other = np.concatenate([pairs.b, pairs.a])
+        s = np.concatenate([pairs.score, pairs.score])
+        c = np.concatenate([pairs.compared, pairs.compared])
+        order = np.lexsort((other, -s, me))
+        first = np.concatenate([[True], me[order][1:] != me[order][:-1]])
+        pick = order[first]
+        partner[me[pick]] = other[pick]
+        score[me[pick]] = s[pick]
+        compared[me[pick]] = c[pick]
+    return Best(partner, score, compared)
+
+
+def max_match_of(codes: np.ndarray, rows: np.ndarray, min_items: int) -> np.ndarray:
+    """The maximum percent match of the given rows against every other row, by direct
+    comparison (cost: len(rows) × respondents × items): the distribution of the
+    statistic estimated on a sample. NaN where no pair reaches `min_items`."""
+    out = np.full(rows.size, np.nan)
+    answered = codes != 0
+    for i, r in enumerate(rows.tolist()):
+        both = answered & answered[r]
+        compared = both.sum(axis=1)
+        matched = (both & (codes == codes[r])).sum(axis=1)
+        compared[r] = 0
+        ok = compared >= min_items
+        if ok.any():
+            out[i] = float((matched[ok] / compared[ok]).max())
+    return out
+
+
+def exact_groups(codes: np.ndarray, min_answered: int) -> list[np.ndarray]:
+    """Groups (two or more rows, ascending) with identical answer vectors, the blanks in
+    the same places, among rows with at least `min_answered` answers: one hash per row,
+    then an exact check inside each group."""
+    rows = np.flatnonzero((codes != 0).sum(axis=1) >= max(1, min_answered))
+    out: list[np.ndarray] = []
+    for group in groups_of(hash_rows(codes[rows]), rows):
+        same = (codes[group] == codes[group[0]]).all(axis=1)
+        if same.all():
+            out.append(group)
+            continue
+        # A hash collision (practically never): split the group exactly.
+        _, inverse = np.unique(codes[group], axis=0, return_inverse=True)
+        for k in np.unique(inverse.ravel()):
+            part = group[inverse.ravel() == k]
+            if part.size > 1:
+                out.append(part)
+    out.sort(key=lambda g: int(g[0]))
+    return out
