@@ -25,7 +25,7 @@ from logiccheck.quality.careless import (
 )
 from logiccheck.quality.config import QualityConfig
 from logiccheck.quality.duplicates import group_messages, id_groups
-from logiccheck.quality.nearmatch import best_partners, exact_groups, near_pairs
+from logiccheck.quality.nearmatch import best_partners, column_labels, exact_groups, near_pairs
 
 # Dispositions whose interview length is compared; screen-outs and break-offs end early
 # because the routing (or the respondent) ended them, so they are never speeders.
@@ -124,8 +124,10 @@ def duplicate_response(ctx: DataContext) -> Iterator[Hits]:
 )
 def near_duplicate(ctx: DataContext) -> Iterator[Hits]:
     dc = _config(ctx).duplicates
-    codes = answer_codes(ctx).codes
-    best = best_partners(near_pairs(codes, dc.near_threshold, dc.near_min_items), ctx.n)
+    answers = answer_codes(ctx)
+    # Items asked of the same respondents are blocked together (speed only).
+    groups = column_labels(ctx.due[:, [ctx.col(name) for name in answers.items]])
+    best = best_partners(near_pairs(answers.codes, dc.near_threshold, dc.near_min_items, groups), ctx.n)
     flagged = best.partner >= 0
     for group in _exact(ctx):
         flagged[group] = False

@@ -12,23 +12,27 @@ over all others.
 (Norouzi, Punjani & Fleet, "Fast exact search in Hamming space with multi-index
 hashing", 2014), adapted to blanks:
 
-* Split the items into blocks of at most s = floor(1 / (1 - threshold)) items.
-  For a pair, let C_j and M_j be the compared and matching items in block j. If
-  M > t·C then sum_j (M_j - t·C_j) > 0, so some block has M_j > t·C_j, hence
-  C_j >= 1; and since C_j <= s <= 1 / (1 - t), one mismatch would give
-  M_j <= C_j - 1 <= t·C_j. So some block has at least one compared item and no
-  mismatch.
-* In that block the two respondents' answered patterns P and Q may differ; they agree
-  on every item of T = P ∩ Q (not empty). Respondents with the same pattern are
-  grouped by their codes on the block; respondents with different patterns P != Q are
-  joined on their codes over P ∩ Q. Either way the pair meets as a candidate.
+* Split the items into blocks of at most s = floor(2 / (1 - threshold)) items (13 at
+  85 %). For a pair, let C_j and M_j be the compared and matching items in block j.
+  If M > t·C then sum_j (M_j - t·C_j) > 0, so some block has M_j > t·C_j, hence
+  M_j >= 1; and since C_j <= s <= 2 / (1 - t), two mismatches would give
+  M_j <= C_j - 2 <= t·C_j. So some block has a matching item and at most one
+  mismatch among the items both answered.
+* In that block the two answered patterns P and Q may differ. Each respondent gets one
+  key per position of the block: its codes (blank as a code of its own) with that
+  position left out. Pairs with P = Q and at most one mismatch, or with patterns
+  differing at one position and no mismatch, share a key. Every other pair of patterns
+  P != Q is joined the same way on the items of P ∩ Q. Either way the pair meets as a
+  candidate.
 * Candidates are then compared exactly (compared, matched), so hash collisions only
   cost time, never a wrong answer.
 
 Work grows with the candidates, not with the square of the respondents: on answers
-with some spread (five-point items) a block of six codes is shared by chance rarely.
-Blocks are formed from items the routing asks of the same respondents (same answered
-column), so patterns inside a block are mostly all-or-nothing.
+with some spread (five-point items) twelve codes of a block are shared by chance
+rarely. Blocks are formed from items the routing asks of the same respondents, so
+patterns inside a block are mostly all-or-nothing; many scattered blanks make many
+patterns and slow the joins down (the result stays exact). Answers with little spread
+(yes/no items only) make many chance candidates: also slower, still exact.
 """
 
 from __future__ import annotations
@@ -61,11 +65,12 @@ class Pairs:
 
 
 def block_size(threshold: float) -> int:
-    """The largest block size for which the pigeonhole argument holds (s·(1 - t) <= 1);
-    a hair under the exact bound, so rounding can only make blocks smaller."""
+    """The largest block size for which the pigeonhole argument holds with at most one
+    mismatch in the witness block (s·(1 - t) <= 2); a hair under the exact bound, so
+    rounding can only make blocks smaller. 0: nothing can be above the threshold."""
     if threshold >= 1:
         return 0
-    return max(1, math.floor(1 / (1 - threshold) - 1e-9))
+    return max(1, math.floor(2 / (1 - threshold) - 1e-9))
 
 
 def hash_rows(codes: np.ndarray) -> np.ndarray:
@@ -147,38 +152,75 @@ def _pairs_across(
             yield np.repeat(part, right.size), np.tile(right, part.size)
 
 
-def blocks_for(codes: np.ndarray, size: int) -> list[np.ndarray]:
-    """Column blocks of at most `size`: columns answered by the same respondents (the
-    routing asks them together) go together, so patterns inside a block rarely differ."""
+def blocks_for(codes: np.ndarray, size: int, groups: np.ndarray | None = None) -> list[np.ndarray]:
+    """Column blocks of at most `size`. Columns with the same group label (e.g. items the
+    routing asks of the same respondents) go together, in order, so answered patterns
+    inside a block are mostly all-or-nothing; without labels, columns answered by
+    exactly the same respondents are grouped."""
     m = codes.shape[1]
     if m == 0 or size <= 0:
         return []
-    answered = codes != 0
-    signature = hash_rows(np.ascontiguousarray(answered.T).astype(np.uint8))
-    order = np.lexsort((np.arange(m), signature))
+    if groups is None:
+        groups = column_labels(codes != 0)
+    order = np.lexsort((np.arange(m), np.asarray(groups)))
     out: list[np.ndarray] = []
-    starts, lengths = runs(signature[order])
+    starts, lengths = runs(np.asarray(groups)[order])
     for s, g in zip(starts.tolist(), lengths.tolist(), strict=True):
         cols = order[s : s + g]
         out.extend(cols[i : i + size] for i in range(0, g, size))
     return out
 
 
-def candidate_pairs(codes: np.ndarray, rows: np.ndarray, size: int) -> Iterator[tuple[np.ndarray, np.ndarray]]:
-    """Batches of candidate pairs (rows of `codes`): a superset of every pair that agrees
-    on all items both answered inside some block and has one such item (see the module
-    docs). Pairs may repeat across batches."""
-    for cols in blocks_for(codes[rows], size):
+def column_labels(mask: np.ndarray) -> np.ndarray:
+    """One label per column of a Boolean matrix; equal columns get equal labels."""
+    packed = np.packbits(mask, axis=0)
+    _, labels = np.unique(np.array([packed[:, j].tobytes() for j in range(mask.shape[1])], dtype=object),
+                          return_inverse=True)
+    return labels.ravel()
+
+
+def _weights(width: int, seed: int) -> tuple[np.ndarray, np.ndarray]:
+    """Random odd multipliers per position, and a random tag per wildcard position."""
+    rng = np.random.default_rng(seed)
+    mult = rng.integers(0, 2**63, size=width, dtype=np.uint64) * np.uint64(2) + np.uint64(1)
+    tag = rng.integers(0, 2**63, size=width, dtype=np.uint64)
+    return mult, tag
+
+
+def wildcard_keys(sub: np.ndarray) -> np.ndarray:
+    """rows × positions: the row's codes with one position left out (its tag instead),
+    as a linear 64-bit hash. Two rows that agree on every position but w share key w;
+    unequal rows share a key only by a hash collision (checked away later)."""
+    mult, tag = _weights(sub.shape[1], 20140101 + sub.shape[1])
+    with np.errstate(over="ignore"):
+        terms = sub.astype(np.uint64) * mult[None, :]
+        total = terms.sum(axis=1, dtype=np.uint64)
+        return total[:, None] - terms + tag[None, :]
+
+
+def _collide(keys: np.ndarray, members: np.ndarray) -> Iterator[tuple[np.ndarray, np.ndarray]]:
+    """Pairs of members sharing a key (rows × keys per member)."""
+    flat = keys.ravel()
+    who = np.repeat(members, keys.shape[1])
+    order = np.lexsort((who, flat))
+    starts, lengths = runs(flat[order])
+    yield from _pairs_within(who[order], starts, lengths)
+
+
+def candidate_pairs(
+    codes: np.ndarray, rows: np.ndarray, size: int, groups: np.ndarray | None = None
+) -> Iterator[tuple[np.ndarray, np.ndarray]]:
+    """Batches of candidate pairs (rows of `codes`): a superset of every pair that, in
+    some block, has an item both answered and at most one mismatch on the items both
+    answered (see the module docs). Pairs may repeat."""
+    for cols in blocks_for(codes[rows], size, groups):
         sub = codes[np.ix_(rows, cols)]
         pattern = ((sub != 0).astype(np.int64) << np.arange(len(cols), dtype=np.int64)).sum(axis=1)
         live = pattern != 0
-        keys = hash_rows(sub)
-        # Same pattern, same codes on the block.
-        member = rows[live]
-        order = np.lexsort((member, keys[live]))
-        starts, lengths = runs(keys[live][order])
-        yield from _pairs_within(member[order], starts, lengths)
-        # Different patterns: joined on the codes of the items both answered.
+        # Same codes, blanks included, except at most one position: same pattern with at
+        # most one mismatch, or patterns differing at one position with no mismatch.
+        yield from _collide(wildcard_keys(sub[live]), rows[live])
+        # Other pattern pairs: joined on the items both answered, one mismatch allowed.
         present = np.unique(pattern[live])
         for ip, p in enumerate(present.tolist()):
             in_p = pattern == p
@@ -188,9 +230,10 @@ def candidate_pairs(codes: np.ndarray, rows: np.ndarray, size: int) -> Iterator[
                     continue
                 shared = [k for k in range(len(cols)) if common >> k & 1]
                 in_q = pattern == qv
-                yield from _pairs_across(
-                    hash_rows(sub[np.ix_(in_p, shared)]), rows[in_p], hash_rows(sub[np.ix_(in_q, shared)]), rows[in_q]
-                )
+                kp = wildcard_keys(sub[np.ix_(in_p, shared)])
+                kq = wildcard_keys(sub[np.ix_(in_q, shared)])
+                yield from _pairs_across(kp.ravel(), np.repeat(rows[in_p], len(shared)),
+                                         kq.ravel(), np.repeat(rows[in_q], len(shared)))
 
 
 def compare_pairs(codes: np.ndarray, a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -206,18 +249,20 @@ def compare_pairs(codes: np.ndarray, a: np.ndarray, b: np.ndarray) -> tuple[np.n
     return compared, matched
 
 
-def near_pairs(codes: np.ndarray, threshold: float, min_items: int) -> Pairs:
+def near_pairs(codes: np.ndarray, threshold: float, min_items: int, groups: np.ndarray | None = None) -> Pairs:
     """Every pair of rows compared on at least `min_items` items with a percent match
-    above `threshold`, exactly (see the module docs)."""
+    above `threshold`, exactly (see the module docs). `groups`: a label per column;
+    columns with one label are blocked together (speed only, never the result)."""
     size = block_size(threshold)
     rows = np.flatnonzero((codes != 0).sum(axis=1) >= max(1, min_items))
     found: list[tuple[np.ndarray, ...]] = []
     if size and rows.size > 1:
         seen = np.zeros(0, np.int64)
         n = np.int64(codes.shape[0])
-        for a, b in candidate_pairs(codes, rows, size):
+        for a, b in candidate_pairs(codes, rows, size, groups):
             lo, hi = np.minimum(a, b), np.maximum(a, b)
             key = np.unique(lo.astype(np.int64) * n + hi)
+            key = key[(key // n) != (key % n)]  # a row never pairs with itself
             key = key[~np.isin(key, seen, assume_unique=True)] if seen.size else key
             if key.size == 0:
                 continue
