@@ -113,10 +113,10 @@ def grid_findings(
     arr = values.to_numpy(dtype=float)
     flags = grid_flags(arr, config)
     out: list[Finding] = []
-    for r in np.flatnonzero(flags.flat):
+    for r in np.flatnonzero(flags.flat).tolist():
         msg = straightline_message(grid, int(flags.answered[r]), float(flags.sd[r]), int(flags.longest_run[r]))
         out.append(finding("straightline", ids[r], int(r), msg, item=grid, value=round(float(flags.sd[r]), 4)))
-    for r in np.flatnonzero(flags.period > 0):
+    for r in np.flatnonzero(flags.period > 0).tolist():
         cycle, length = cycle_text(arr[r], int(flags.period[r]))
         out.append(
             finding("pattern-response", ids[r], int(r), f"grid {grid}: answers repeat the cycle {cycle} over {length} rows",
@@ -158,7 +158,7 @@ def speeders(ids: Sequence[object], durations: pd.Series, config: SpeedConfig) -
         finding("speeder", ids[r], int(r),
                 f"interview took {d[r]:g} s, under {config.fraction_of_median:.2f} × the median {flags.median:g} s",
                 item=config.duration_column, value=float(d[r]))
-        for r in np.flatnonzero(flags.flag)
+        for r in np.flatnonzero(flags.flag).tolist()
     ]
 
 
@@ -174,7 +174,7 @@ def normalise_email(value: object) -> str | None:
 
 def _normalised(values: Sequence[object] | np.ndarray) -> np.ndarray:
     """E-mails without spaces, case-folded; None where blank (vectorised)."""
-    s = pd.Series(values, dtype=object)
+    s = pd.Series(list(values), dtype=object)
     text = s.where(s.notna(), "").astype(str).str.replace(_SPACE, "", regex=True).str.casefold()
     out = text.to_numpy(dtype=object)
     out[out == ""] = None
@@ -240,5 +240,5 @@ def not_in_frame(
         finding("not-in-frame", ids[r], int(r),
                 frame_message(ids[r], emails[r] if emails is not None else None, bool(flags.id_missing[r]),
                               bool(flags.email_missing[r])))
-        for r in hit
+        for r in hit.tolist()
     ]

@@ -142,7 +142,8 @@ def max_percent_match(
         # Items asked of everyone add nothing to "neither was asked".
         na = not_asked[:, not_asked.any(axis=0)].astype(np.float32)
     elif basis == "all":
-        neither_onehot = na = None
+        neither_onehot = None
+        na = None
     else:
         raise ValueError(f"unknown basis {basis!r}; use 'asked' or 'all'")
 
@@ -232,7 +233,7 @@ def near_duplicates(
     (already exact duplicates) are left to `duplicate-response`."""
     out = []
     skip = exclude or set()
-    for r in np.flatnonzero(np.nan_to_num(scores.score, nan=-1.0) > threshold):
+    for r in np.flatnonzero(np.nan_to_num(scores.score, nan=-1.0) > threshold).tolist():
         if int(r) in skip:
             continue
         p = int(scores.partner[r])

@@ -93,8 +93,9 @@ def runs(sorted_keys: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 
 
 def groups_of(keys: np.ndarray, rows: np.ndarray) -> Iterator[np.ndarray]:
-    """Rows sharing a key, groups of two or more, in order of their first row."""
-    order = np.lexsort((rows, keys))
+    """Rows sharing a key, groups of two or more, in order of their first row (`rows`
+    ascending)."""
+    order = np.argsort(keys, kind="stable")  # rows ascend, so they stay ascending inside a run
     starts, lengths = runs(keys[order])
     big = lengths > 1
     for s, g in sorted(zip(starts[big].tolist(), lengths[big].tolist(), strict=True), key=lambda t: rows[order[t[0]]]):
@@ -102,22 +103,35 @@ def groups_of(keys: np.ndarray, rows: np.ndarray) -> Iterator[np.ndarray]:
 
 
 def _pairs_within(members: np.ndarray, starts: np.ndarray, lengths: np.ndarray) -> Iterator[tuple[np.ndarray, np.ndarray]]:
-    """Every pair inside each run (members already in run order), in bounded batches."""
+    """Every pair inside each run (members already in run order), in bounded batches,
+    all runs of a batch at once."""
     keep = lengths > 1
     starts, lengths = starts[keep], lengths[keep]
     per_run = lengths * (lengths - 1) // 2
+    huge = per_run > PAIR_BATCH
+    for s, g in zip(starts[huge].tolist(), lengths[huge].tolist(), strict=True):
+        yield from _big_run(members[s : s + g])
+    starts, lengths, per_run = starts[~huge], lengths[~huge], per_run[~huge]
+    total = np.cumsum(per_run)
     i = 0
     while i < starts.size:
-        # Take runs until the batch is full (at least one run, however large).
-        total = np.cumsum(per_run[i:])
-        j = i + max(1, int(np.searchsorted(total, PAIR_BATCH, side="right")))
-        for s, g in zip(starts[i:j].tolist(), lengths[i:j].tolist(), strict=True):
-            if g * (g - 1) // 2 > PAIR_BATCH:
-                yield from _big_run(members[s : s + g])
-                continue
-            left, right = np.triu_indices(g, 1)
-            yield members[s + left], members[s + right]
+        j = max(i + 1, int(np.searchsorted(total, (total[i - 1] if i else 0) + PAIR_BATCH, side="right")))
+        g = lengths[i:j]
+        # One entry per run member that has partners after it: its position and how many.
+        pos = np.repeat(starts[i:j], g) + _ramp(g)
+        after = np.repeat(g, g) - 1 - _ramp(g)
+        has = after > 0
+        pos, after = pos[has], after[has]
+        left = np.repeat(pos, after)
+        right = left + 1 + _ramp(after)
+        yield members[left], members[right]
         i = j
+
+
+def _ramp(counts: np.ndarray) -> np.ndarray:
+    """0..c-1 for each count c, concatenated."""
+    total = int(counts.sum())
+    return np.arange(total) - np.repeat(np.cumsum(counts) - counts, counts)
 
 
 def _big_run(members: np.ndarray) -> Iterator[tuple[np.ndarray, np.ndarray]]:
@@ -128,8 +142,7 @@ def _big_run(members: np.ndarray) -> Iterator[tuple[np.ndarray, np.ndarray]]:
         first = np.arange(r0, min(r0 + step, g - 1))
         after = g - 1 - first  # partners of each first member
         left = np.repeat(first, after)
-        offset = np.arange(left.size) - np.repeat(np.cumsum(after) - after, after)
-        yield members[left], members[left + 1 + offset]
+        yield members[left], members[left + 1 + _ramp(after)]
 
 
 def _pairs_across(
@@ -199,12 +212,17 @@ def wildcard_keys(sub: np.ndarray) -> np.ndarray:
 
 
 def _collide(keys: np.ndarray, members: np.ndarray) -> Iterator[tuple[np.ndarray, np.ndarray]]:
-    """Pairs of members sharing a key (rows × keys per member)."""
-    flat = keys.ravel()
-    who = np.repeat(members, keys.shape[1])
-    order = np.lexsort((who, flat))
-    starts, lengths = runs(flat[order])
-    yield from _pairs_within(who[order], starts, lengths)
+    """Pairs of members sharing a key (rows × keys per member).
+
+    The upper 32 bits of a key and the member's row are packed into one word and sorted
+    (a plain sort is about twice as fast as an argsort); rows sharing only the upper
+    bits of unequal keys become extra candidates, checked away later."""
+    width = keys.shape[1]
+    packed = (keys.ravel() >> np.uint64(32)) << np.uint64(32)
+    packed |= np.repeat(members.astype(np.uint64), width)
+    packed.sort()
+    starts, lengths = runs(packed >> np.uint64(32))
+    yield from _pairs_within((packed & np.uint64(0xFFFFFFFF)).astype(np.int64), starts, lengths)
 
 
 def candidate_pairs(
@@ -249,6 +267,20 @@ def compare_pairs(codes: np.ndarray, a: np.ndarray, b: np.ndarray) -> tuple[np.n
     return compared, matched
 
 
+def _batched(parts: Iterator[tuple[np.ndarray, np.ndarray]]) -> Iterator[tuple[np.ndarray, np.ndarray]]:
+    """Small batches joined into batches of about `PAIR_BATCH` pairs (fewer numpy calls)."""
+    held: list[tuple[np.ndarray, np.ndarray]] = []
+    count = 0
+    for a, b in parts:
+        held.append((a, b))
+        count += a.size
+        if count >= PAIR_BATCH:
+            yield np.concatenate([x for x, _ in held]), np.concatenate([y for _, y in held])
+            held, count = [], 0
+    if held:
+        yield np.concatenate([x for x, _ in held]), np.concatenate([y for _, y in held])
+
+
 def near_pairs(codes: np.ndarray, threshold: float, min_items: int, groups: np.ndarray | None = None) -> Pairs:
     """Every pair of rows compared on at least `min_items` items with a percent match
     above `threshold`, exactly (see the module docs). `groups`: a label per column;
@@ -259,7 +291,7 @@ def near_pairs(codes: np.ndarray, threshold: float, min_items: int, groups: np.n
     if size and rows.size > 1:
         seen = np.zeros(0, np.int64)
         n = np.int64(codes.shape[0])
-        for a, b in candidate_pairs(codes, rows, size, groups):
+        for a, b in _batched(candidate_pairs(codes, rows, size, groups)):
             lo, hi = np.minimum(a, b), np.maximum(a, b)
             key = np.unique(lo.astype(np.int64) * n + hi)
             key = key[(key // n) != (key % n)]  # a row never pairs with itself
