@@ -12,6 +12,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+import pandas as pd
 
 from logiccheck.checks.data_context import DataContext
 
@@ -32,9 +33,10 @@ def _codes(values: np.ndarray, present: np.ndarray) -> tuple[np.ndarray, int]:
     """1..K for the distinct values where present, 0 elsewhere."""
     out = np.zeros(values.shape[0], np.int64)
     if present.any():
-        distinct, inverse = np.unique(values[present], return_inverse=True)
-        out[present] = inverse.ravel() + 1
-        return out, int(distinct.size)
+        # Hash-based (no sort); which number each answer gets does not matter.
+        labels, distinct = pd.factorize(values[present])
+        out[present] = labels + 1
+        return out, len(distinct)
     return out, 0
 
 
