@@ -16,6 +16,7 @@ from logiccheck.checks.registry import data_check
 from logiccheck.data.findings import Hits
 from logiccheck.quality.answers import answer_codes
 from logiccheck.quality.careless import (
+    GridFlags,
     cycle_text,
     frame_flags,
     frame_message,
@@ -114,10 +115,11 @@ def duplicate_response(ctx: DataContext) -> Iterator[Hits]:
     "look alike; free text is not compared. A pair is scored only when it shares at least "
     "`[quality.duplicates] near_min_items` answered items (default 10; common practice, no source), so a "
     "respondent with fewer answers is never flagged. Every pair above `near_threshold` is found exactly "
-    "without comparing all pairs: items are split into blocks of at most 1 / (1 - threshold) items, and a "
-    "pair above the threshold must agree on every item both answered in some block (a pigeonhole argument, "
-    "as in multi-index hashing: Norouzi, Punjani & Fleet 2014), so only pairs sharing a block's answers are "
-    "compared. Respondents reported as `duplicate-response` are left to that check.",
+    "without comparing all pairs: items are split into blocks of at most 2 / (1 - threshold) items (13 at "
+    "85 %), and a pair above the threshold must, in some block, agree on all but at most one of the items "
+    "both answered (a pigeonhole argument, as in multi-index hashing: Norouzi, Punjani & Fleet 2014), so "
+    "only pairs that meet in some block are compared. Respondents reported as `duplicate-response` are "
+    "left to that check.",
     why="Near-copies point at interviews fabricated by editing a real one.",
     bad="two respondents agreeing on 18 of the 20 items both answered (90 %)",
     good="two respondents agreeing on 7 of the 20 items both answered (35 %), as chance gives on five-point items",
@@ -141,6 +143,16 @@ def near_duplicate(ctx: DataContext) -> Iterator[Hits]:
         for r in rows.tolist()
     ]
     yield Hits(rows=rows, message=messages, values=[f"{best.score[r]:.4f}" for r in rows.tolist()])
+
+
+def _grid(ctx: DataContext, grid: str) -> tuple[np.ndarray, GridFlags]:
+    """A grid's answers and flags, computed once per run for both grid checks."""
+    key = f"quality.grid.{grid}"
+    if key not in ctx.memo:
+        values = _grid_values(ctx, grid)
+        ctx.memo[key] = (values, grid_flags(values, _config(ctx).careless))
+    values, flags = ctx.memo[key]
+    return values, flags
 
 
 def _grid_values(ctx: DataContext, grid: str) -> np.ndarray:
@@ -170,9 +182,8 @@ def _grid_values(ctx: DataContext, grid: str) -> np.ndarray:
     good="docks: 4, 2, 5, 4, 3, 4",
 )
 def straightline(ctx: DataContext) -> Iterator[Hits]:
-    config = _config(ctx).careless
     for grid in ctx.q.grids:
-        flags = grid_flags(_grid_values(ctx, grid), config)
+        _, flags = _grid(ctx, grid)
         rows = np.flatnonzero(flags.flat)
         if rows.size:
             messages = [straightline_message(grid, int(flags.answered[r]), float(flags.sd[r]), int(flags.longest_run[r]))
@@ -193,10 +204,8 @@ def straightline(ctx: DataContext) -> Iterator[Hits]:
     good="1, 5, 2, 4, 4, 5",
 )
 def pattern_response(ctx: DataContext) -> Iterator[Hits]:
-    config = _config(ctx).careless
     for grid in ctx.q.grids:
-        values = _grid_values(ctx, grid)
-        flags = grid_flags(values, config)
+        values, flags = _grid(ctx, grid)
         rows = np.flatnonzero(flags.period > 0)
         if rows.size:
             messages = []
