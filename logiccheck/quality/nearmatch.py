@@ -37,6 +37,7 @@ patterns and slow the joins down (the result stays exact). Answers with little s
 
 from __future__ import annotations
 
+import functools
 import math
 from collections.abc import Iterator
 from dataclasses import dataclass
@@ -148,21 +149,29 @@ def _big_run(members: np.ndarray) -> Iterator[tuple[np.ndarray, np.ndarray]]:
 def _pairs_across(
     keys_p: np.ndarray, rows_p: np.ndarray, keys_q: np.ndarray, rows_q: np.ndarray
 ) -> Iterator[tuple[np.ndarray, np.ndarray]]:
-    """Every (p, q) with equal keys, p from one set and q from the other."""
-    op, oq = np.argsort(keys_p, kind="stable"), np.argsort(keys_q, kind="stable")
+    """Every (p, q) with equal keys, p from one set and q from the other, in batches of
+    whole keys (all keys of a batch at once)."""
+    op, oq = np.argsort(keys_p), np.argsort(keys_q)
     kp, kq = keys_p[op], keys_q[oq]
-    common = np.intersect1d(kp, kq, assume_unique=False)
+    at = np.minimum(np.searchsorted(kp, kq), kp.size - 1)
+    common = kq[kp[at] == kq]
     if common.size == 0:
         return
-    lo_p, hi_p = np.searchsorted(kp, common, "left"), np.searchsorted(kp, common, "right")
-    lo_q, hi_q = np.searchsorted(kq, common, "left"), np.searchsorted(kq, common, "right")
-    for a0, a1, b0, b1 in zip(lo_p.tolist(), hi_p.tolist(), lo_q.tolist(), hi_q.tolist(), strict=True):
-        left = rows_p[op[a0:a1]]
-        right = rows_q[oq[b0:b1]]
-        step = max(1, PAIR_BATCH // max(1, right.size))
-        for s in range(0, left.size, step):
-            part = left[s : s + step]
-            yield np.repeat(part, right.size), np.tile(right, part.size)
+    common = common[np.concatenate([[True], common[1:] != common[:-1]])]
+    lo_p, cp = np.searchsorted(kp, common, "left"), np.searchsorted(kp, common, "right")
+    lo_q, cq = np.searchsorted(kq, common, "left"), np.searchsorted(kq, common, "right")
+    cp, cq = cp - lo_p, cq - lo_q
+    total = np.cumsum(cp * cq)
+    i = 0
+    while i < common.size:
+        j = max(i + 1, int(np.searchsorted(total, (total[i - 1] if i else 0) + PAIR_BATCH, side="right")))
+        np_, nq = cp[i:j], cq[i:j]
+        left_at = np.repeat(lo_p[i:j], np_) + _ramp(np_)  # every p member of these keys
+        partners = np.repeat(nq, np_)  # how many q members each of them meets
+        left = np.repeat(left_at, partners)
+        right = np.repeat(np.repeat(lo_q[i:j], np_), partners) + _ramp(partners)
+        yield rows_p[op[left]], rows_q[oq[right]]
+        i = j
 
 
 def blocks_for(codes: np.ndarray, size: int, groups: np.ndarray | None = None) -> list[np.ndarray]:
@@ -192,8 +201,10 @@ def column_labels(mask: np.ndarray) -> np.ndarray:
     return labels.ravel()
 
 
+@functools.lru_cache(maxsize=64)
 def _weights(width: int, seed: int) -> tuple[np.ndarray, np.ndarray]:
-    """Random odd multipliers per position, and a random tag per wildcard position."""
+    """Random odd multipliers per position, and a random tag per wildcard position
+    (fixed per width, so every run hashes alike)."""
     rng = np.random.default_rng(seed)
     mult = rng.integers(0, 2**63, size=width, dtype=np.uint64) * np.uint64(2) + np.uint64(1)
     tag = rng.integers(0, 2**63, size=width, dtype=np.uint64)
