@@ -130,6 +130,7 @@ def near_duplicate(ctx: DataContext) -> Iterator[Hits]:
     # Items asked of the same respondents are blocked together (speed only).
     groups = column_labels(ctx.due[:, [ctx.col(name) for name in answers.items]])
     best = best_partners(near_pairs(answers.codes, dc.near_threshold, dc.near_min_items, groups), ctx.n)
+    ctx.memo["quality.near"] = best
     flagged = best.partner >= 0
     for group in _exact(ctx):
         flagged[group] = False

@@ -91,3 +91,25 @@ def test_dispositions_used_are_the_completeness_stage_ones() -> None:
 
     state = route_state(q, export)
     assert ctx.disposition.tolist() == completeness.dispositions(q, state, QualityConfig().completeness).tolist()
+
+
+def test_the_validate_command_finds_every_planted_case_and_nothing_else(tmp_path) -> None:  # type: ignore[no-untyped-def]
+    import json
+
+    from click.testing import CliRunner
+
+    from logiccheck.cli.main import cli
+    from tests.quality.context import QUALITY
+
+    export, frame, expected = build_routed()
+    export.to_csv(tmp_path / "export.csv", index=False)
+    frame.to_csv(tmp_path / "frame.csv", index=False)
+    (tmp_path / "lib.qlc").write_text(SPEC)
+    res = CliRunner().invoke(cli, ["validate", str(tmp_path / "lib.qlc"), "--data", str(tmp_path / "export.csv"),
+                                   "--frame", str(tmp_path / "frame.csv"), "--format", "json"])
+    assert res.exit_code in (0, 1), res.output
+    got: dict[str, set[str]] = {rid: set() for rid in expected}
+    for f in json.loads(res.stdout)["findings"]:
+        if f["check"] in QUALITY:
+            got[f["respondent"]].add(f["check"])
+    assert got == expected
