@@ -58,7 +58,7 @@ def duplicate_ids(ids: Sequence[object]) -> list[Finding]:
         for r, msg in zip(group.tolist(), group_messages(group, lambda o: f"row {o + 1}", f"id {rid} appears on {{count}} rows; also on {{others}}"),
                           strict=True):
             out.append(finding("duplicate-id", rid, r, msg))
-    return sorted(out, key=lambda f: f.row)
+    return sorted(out, key=lambda f: f.row or 0)
 
 
 def duplicate_responses(ids: Sequence[object], answers: pd.DataFrame, min_answered: int = 3) -> list[Finding]:
@@ -75,7 +75,7 @@ def duplicate_responses(ids: Sequence[object], answers: pd.DataFrame, min_answer
         answered = int((codes[group[0]] != 0).sum())
         msgs = group_messages(group, lambda o: str(ids[o]), f"the same {answered} answers (and the same blanks) as respondent {{others}}")
         out += [finding("duplicate-response", ids[r], r, m, value=int(group[0])) for r, m in zip(group.tolist(), msgs, strict=True)]
-    return sorted(out, key=lambda f: f.row)
+    return sorted(out, key=lambda f: f.row or 0)
 
 
 @dataclass
