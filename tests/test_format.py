@@ -64,7 +64,7 @@ def test_demo_specs_are_formatted_and_keep_their_meaning(path: Path) -> None:
     assert format_text(rough, str(path)) == text
 
 
-@settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(seed=st.integers(0, 10**6), size=st.integers(2, 12), rough=st.integers(0, 10**6))
 def test_generated_specs_keep_meaning_and_comments(seed: int, size: int, rough: int) -> None:
     text = make_spec(seed, size)

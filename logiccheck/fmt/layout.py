@@ -254,6 +254,13 @@ def _blank_lines(lines: list[Line]) -> list[Line]:
             while start > 0 and lines[start - 1].kind == "comment" and lines[start - 1].level == 0:
                 start -= 1
             want_before.add(start)
+            # Comments indented under its last line end the block with it.
+            while last + 1 < len(lines) and lines[last + 1].kind in ("comment", "blank") and (
+                lines[last + 1].kind == "blank" or lines[last + 1].level > 0
+            ):
+                last += 1
+            while lines[last].kind == "blank":
+                last -= 1
             want_after.add(last)
     out: list[Line] = []
     for index, line in enumerate(lines):
