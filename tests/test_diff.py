@@ -212,3 +212,43 @@ def test_markdown_caps_rows_but_json_keeps_all() -> None:
     md = diff_markdown(result)
     assert md.count("| 🔴 break |") == MAX_ROWS and "… and 21 more changes" in md
     assert len(result.to_json()["changes"]) == MAX_ROWS + 21
+
+
+@pytest.mark.parametrize(
+    ("old", "new", "expected"),
+    [
+        # A sample variable's answer recoded: the sample file's codes no longer match.
+        ("wave1", "sample_recode", [("recode", "district", "`west` 3 → 4")]),
+        ("wave1", "sample_added", [("sample-added", "visits", "is new"), ("option-added", "district", "`north` = 4")]),
+        ("wave1", "sample_removed", [("sample-removed", "district", "was removed")]),
+        (
+            "wave1",
+            "nonresponse",
+            [
+                ("recode", None, "`dk` 98 → 97"),
+                ("option-reworded", None, '"Prefer not to say" is now "Would rather not say"'),
+                ("option-added", None, "`na` = 96"),
+            ],
+        ),
+        # Named lists nothing uses are compared under their own names.
+        ("lists_old", "lists_new", [("recode", "spare", "`high` 2 → 3"), ("codes-added", "fresh", "is new"),
+                                    ("codes-removed", "gone", "was removed")]),
+    ],
+)
+def test_sample_variables_answer_lists_and_nonresponse_are_compared(old: str, new: str, expected: list) -> None:
+    _, _, result = _diff(new, old=old)
+    assert [(c.kind, c.item) for c in result.changes] == [(k, i) for k, i, _ in expected]
+    for change, (_, _, words) in zip(result.changes, expected, strict=True):
+        assert words in change.message
+    if new == "nonresponse":
+        assert all(c.details.get("list") == "nonresponse" for c in result.changes)
+    # The JSON form carries the same kinds; a recode is a breaking change.
+    kinds = [c["kind"] for c in result.to_json()["changes"]]
+    assert kinds == [k for k, _, _ in expected]
+    assert all(c.impact == "break" for c in result.changes if c.kind == "recode")
+
+
+def test_a_list_an_item_uses_is_reported_with_the_item_only() -> None:
+    # wave1 → recode moves codes of the `freq` list, which the item `freq` uses: one change.
+    _, _, result = _diff("recode")
+    assert [(c.kind, c.item, c.details.get("list")) for c in result.changes] == [("recode", "freq", "freq")]
