@@ -51,7 +51,9 @@ class Queries:
         if subjects is None:
             return list(self.enc.conjuncts)
         out: list[Conjunct] = []
-        for subject in subjects:
+        # A set's order changes with the string hash seed; the solver's cores and
+        # witnesses follow the order constraints are given in, so fix it.
+        for subject in sorted(subjects) if isinstance(subjects, (set, frozenset)) else subjects:
             out.extend(self.by_subject.get(subject, ()))
         return out
 
