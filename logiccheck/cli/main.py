@@ -14,6 +14,7 @@ from logiccheck.cli.graph import graph_command
 from logiccheck.cli.lint import lint_command
 from logiccheck.cli.rates import rates_command
 from logiccheck.cli.report import report_command
+from logiccheck.cli.server import server_command
 from logiccheck.cli.simulate import simulate_command
 from logiccheck.cli.validate import validate_command
 
@@ -36,6 +37,7 @@ cli.add_command(report_command)
 cli.add_command(clean_command)
 cli.add_command(rates_command)
 cli.add_command(format_command)
+cli.add_command(server_command)
 
 
 def main() -> None:
