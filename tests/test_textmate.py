@@ -19,7 +19,7 @@ EDITORS = ROOT / "editors"
 GRAMMAR = EDITORS / "qlc.tmLanguage.json"
 SCRIPT = EDITORS / "check" / "tokenize.mjs"
 MODULES = EDITORS / "check" / "node_modules"
-DEMO = sorted(p for p in SPECS.rglob("*.qlc") if "syntax" not in p.name) + [ROOT / "tests" / "server" / "planted.qlc"]
+DEMO = [*sorted(p for p in SPECS.rglob("*.qlc") if "syntax" not in p.name), ROOT / "tests" / "server" / "planted.qlc"]
 
 # What our lexer calls a token -> the scope the highlighter must give it.
 EXPECTED = {

@@ -21,6 +21,7 @@ from logiccheck import __version__
 from logiccheck.config import Config, ConfigError, config_for
 from logiccheck.server import features
 from logiccheck.server.document import Document, open_document, routing_job
+from logiccheck.server.incremental import ChunkCache
 from logiccheck.server.routing_worker import Workers
 
 ROUTING_DELAY = 0.4  # seconds of quiet before the solver starts (setting `routingDelay`, ms)
@@ -29,6 +30,7 @@ class SpecServer(LanguageServer):
     def __init__(self) -> None:
         super().__init__("logiccheck", __version__, text_document_sync_kind=lsp.TextDocumentSyncKind.Incremental)
         self.docs: dict[str, Document] = {}
+        self.caches: dict[str, ChunkCache] = {}
         self.pending: dict[str, asyncio.Task[None]] = {}
         self.routing_delay = ROUTING_DELAY
         self.routing = True
@@ -48,7 +50,8 @@ class SpecServer(LanguageServer):
         path = to_fs_path(uri) or uri
         previous = self.docs.get(uri)
         config = previous.config if previous is not None and previous.path == path else self.config(path)
-        doc = open_document(uri, path, text_doc.source, text_doc.version or 0, config)
+        cache = self.caches.setdefault(uri, ChunkCache())
+        doc = open_document(uri, path, text_doc.source, text_doc.version or 0, config, cache)
         self.docs[uri] = doc
         self.publish(doc)
         task = self.pending.pop(uri, None)
@@ -129,6 +132,7 @@ def did_close(ls: SpecServer, params: lsp.DidCloseTextDocumentParams) -> None:
     if task is not None:
         task.cancel()
     ls.docs.pop(uri, None)
+    ls.caches.pop(uri, None)
     ls.text_document_publish_diagnostics(lsp.PublishDiagnosticsParams(uri=uri, diagnostics=[]))
 
 

@@ -10,6 +10,7 @@ from logiccheck.config import Config
 from logiccheck.diagnostics import Diagnostic
 from logiccheck.loader import Loaded, load_text
 from logiccheck.model.questionnaire import Questionnaire
+from logiccheck.server.incremental import ChunkCache, load_incremental
 from logiccheck.server.index import NameIndex, build_index
 from logiccheck.server.routing_worker import Reach, RoutingJob
 
@@ -38,9 +39,12 @@ class Document:
         return self.full if self.full is not None else self.static
 
 
-def open_document(uri: str, path: str, text: str, version: int, config: Config) -> Document:
-    """Parse, resolve and run the static checks: what the server does on every change."""
-    loaded = load_text(text, path)
+def open_document(
+    uri: str, path: str, text: str, version: int, config: Config, cache: ChunkCache | None = None
+) -> Document:
+    """Parse, resolve and run the static checks: what the server does on every change.
+    With a cache, only the top-level statements that changed are parsed again."""
+    loaded = load_incremental(cache, text, path) if cache is not None else load_text(text, path)
     doc = Document(uri, path, text, version, config, loaded, build_index(loaded.questionnaire))
     doc.static = lint(doc, solver=False)
     return doc
