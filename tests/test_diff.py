@@ -252,3 +252,30 @@ def test_a_list_an_item_uses_is_reported_with_the_item_only() -> None:
     # wave1 → recode moves codes of the `freq` list, which the item `freq` uses: one change.
     _, _, result = _diff("recode")
     assert [(c.kind, c.item, c.details.get("list")) for c in result.changes] == [("recode", "freq", "freq")]
+
+
+def test_nonresponse_answers_are_linked_by_label_across_versions() -> None:
+    old_text = (
+        'survey s "S"\ncodes yn\n  yes = 1 "Yes"\n  no  = 2 "No"\nnonresponse\n  dk = 98 "Don\'t know"\n'
+        '  refused = 99 "Refused"\nb: number 0..10 "B?"\nc: text "C?" when b >= 5\ne: text "E?" when b = 98\n'
+    )
+    old = load_text(old_text, "old.qlc").questionnaire
+
+    def kinds(new_text: str) -> list[tuple[str, str | None]]:
+        return _kinds(diff_questionnaires(old, load_text(new_text, "new.qlc").questionnaire))
+
+    # `dk` recoded, the rule following it: only the recode; the rewrite is proved equal.
+    assert kinds(old_text.replace("dk = 98", "dk = 97").replace("b = 98", "b = 97")) == [
+        ("recode", None), ("routing-equivalent", "e")]
+    # `dk` recoded but the rule still reads 98: whoever says "don't know" is no longer
+    # asked `e`, and the independent router agrees with the witness.
+    new_text = old_text.replace("dk = 98", "dk = 97")
+    new = load_text(new_text, "new.qlc").questionnaire
+    result = diff_questionnaires(old, new)
+    assert _kinds(result) == [("recode", None), ("routing-changed", "e")]
+    change = result.changes[1]
+    a = Router(old, parse_witness(old, change.witness, side="old")).asked["e"]
+    b = Router(new, parse_witness(new, change.witness, side="new")).asked["e"]
+    assert (a, b) == (True, False) and change.asked_in == "old"
+    # A non-response code dropped that no condition reads: no routing change.
+    assert kinds(old_text.replace('  refused = 99 "Refused"\n', "")) == [("option-removed", None)]

@@ -159,6 +159,8 @@ def _route_text(q: Questionnaire, e: Entry, rename: dict[str, str]) -> Any:
             out = {k: rename_refs(v) for k, v in value.items()}
             if out.get("kind") in ("ref", "func") and out.get("name") in rename:
                 out["name"] = rename[out["name"]]
+            if out.get("kind") == "code":
+                out.pop("value", None)  # codes are compared by label: a recode is reported apart
             return out
         if isinstance(value, list):
             return [rename_refs(v) for v in value]
