@@ -10,7 +10,8 @@ configuration.
 from __future__ import annotations
 
 import asyncio
-from typing import Any
+from collections.abc import Callable
+from typing import Any, TypeVar
 
 from lsprotocol import types as lsp
 from pygls.exceptions import JsonRpcInvalidParams
@@ -90,10 +91,17 @@ class SpecServer(LanguageServer):
 
 
 server = SpecServer()
+T = TypeVar("T")
 
 
 def _at(doc: Document, position: lsp.Position) -> tuple[int, int]:
     return features.from_position(doc.text.split("\n"), position)
+
+
+def _ask(ls: SpecServer, params: Any, answer: Callable[[Document, int, int], T]) -> T | None:
+    """A request about one position of an open document."""
+    doc = ls.doc(params.text_document.uri)
+    return answer(doc, *_at(doc, params.position)) if doc else None
 
 
 @server.feature(lsp.INITIALIZE)
@@ -138,14 +146,12 @@ def did_close(ls: SpecServer, params: lsp.DidCloseTextDocumentParams) -> None:
 
 @server.feature(lsp.TEXT_DOCUMENT_HOVER)
 def hover(ls: SpecServer, params: lsp.HoverParams) -> lsp.Hover | None:
-    doc = ls.doc(params.text_document.uri)
-    return features.hover(doc, *_at(doc, params.position)) if doc else None
+    return _ask(ls, params, features.hover)
 
 
 @server.feature(lsp.TEXT_DOCUMENT_DEFINITION)
 def definition(ls: SpecServer, params: lsp.DefinitionParams) -> lsp.Location | None:
-    doc = ls.doc(params.text_document.uri)
-    return features.definition(doc, *_at(doc, params.position)) if doc else None
+    return _ask(ls, params, features.definition)
 
 
 @server.feature(lsp.TEXT_DOCUMENT_REFERENCES)
@@ -161,9 +167,7 @@ def references(ls: SpecServer, params: lsp.ReferenceParams) -> list[lsp.Location
     lsp.CompletionOptions(trigger_characters=["=", "(", ",", " "]),
 )
 def completion(ls: SpecServer, params: lsp.CompletionParams) -> lsp.CompletionList:
-    doc = ls.doc(params.text_document.uri)
-    items = features.completion(doc, *_at(doc, params.position)) if doc else []
-    return lsp.CompletionList(is_incomplete=False, items=items)
+    return lsp.CompletionList(is_incomplete=False, items=_ask(ls, params, features.completion) or [])
 
 
 @server.feature(lsp.TEXT_DOCUMENT_DOCUMENT_SYMBOL)
@@ -174,8 +178,7 @@ def document_symbol(ls: SpecServer, params: lsp.DocumentSymbolParams) -> list[ls
 
 @server.feature(lsp.TEXT_DOCUMENT_PREPARE_RENAME)
 def prepare_rename(ls: SpecServer, params: lsp.PrepareRenameParams) -> lsp.Range | None:
-    doc = ls.doc(params.text_document.uri)
-    return features.prepare_rename(doc, *_at(doc, params.position)) if doc else None
+    return _ask(ls, params, features.prepare_rename)
 
 
 @server.feature(lsp.TEXT_DOCUMENT_RENAME)
