@@ -203,8 +203,8 @@ def _label_hover(doc: Document, key: Key) -> list[str]:
     elif listed.startswith("inline:"):
         owner = listed.split(":", 1)[1]
         entry = q.symbols.get(owner)
-        stmt = entry.stmt if entry is not None else q.grids.get(owner)
-        codes = q.item_codes(stmt) if stmt is not None else None
+        grid = q.grids.get(owner)
+        codes = q.item_codes(entry.stmt) if entry is not None else (grid.type.inline_codes if grid else None)
         options, where = (codes.options if codes else []), f"the answers of `{owner}`"
     else:
         codes = q.codes.get(listed)
