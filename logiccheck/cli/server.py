@@ -7,9 +7,11 @@ import click
 
 @click.command("server")
 def server_command() -> None:
-    """Language server for editors (LSP over stdin/stdout): diagnostics as you type,
-    hover, go to definition, references, completion, outline, rename, quick fixes and
-    formatting. Configure your editor to run `logiccheck server` for *.qlc files."""
+    """Language server for editors: LSP over standard input and output.
+
+    Diagnostics as you type, hover, go to definition, references, completion, outline,
+    rename, quick fixes and formatting. Configure your editor to run `logiccheck server`
+    for *.qlc files."""
     from logiccheck.server.app import serve
 
     serve()

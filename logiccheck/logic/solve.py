@@ -51,9 +51,9 @@ class Queries:
         if subjects is None:
             return list(self.enc.conjuncts)
         out: list[Conjunct] = []
-        # A set's order changes with the string hash seed; the solver's cores and
-        # witnesses follow the order constraints are given in, so fix it.
-        for subject in sorted(subjects) if isinstance(subjects, (set, frozenset)) else subjects:
+        # Sorted: subjects often come as a set, and the order constraints are asserted
+        # in steers which model z3 finds, so set order would change witnesses per run.
+        for subject in sorted(s for s in subjects if s is not None):
             out.extend(self.by_subject.get(subject, ()))
         return out
 
