@@ -40,6 +40,10 @@ COMMANDS: dict[str, tuple[str, str]] = {
               "Response, cooperation, refusal and contact rates from final case outcomes."),
     "draft": ("logiccheck.cli.draft:draft_command",
               "Write a starting spec from an export: items, answer lists and the routing the answers follow."),
+    "format": ("logiccheck.cli.format:format_command",
+               "Lay out specs one way: indentation, spacing, aligned answer lists, blank lines."),
+    "server": ("logiccheck.cli.server:server_command",
+               "Language server for editors: LSP over standard input and output."),
 }
 
 
