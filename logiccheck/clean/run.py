@@ -6,14 +6,17 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+import numpy as np
 import pandas as pd
 
 from logiccheck import __version__
+from logiccheck.checks.analyses import Analysis
 from logiccheck.clean.apply import CleanOutcome, apply_policy
 from logiccheck.clean.io import ExportError, export_format, file_hash, read_export, write_json, write_table
 from logiccheck.clean.policy import BIAS_WARNING, CleanPolicy, PolicyError
 from logiccheck.data.mapping import DataMapping
 from logiccheck.data.readers import DataReadError
+from logiccheck.data.result import ValidationResult
 from logiccheck.data.validate import validate
 from logiccheck.model.questionnaire import Questionnaire
 from logiccheck.quality.bridge import require_id, state_from_validation
@@ -21,6 +24,8 @@ from logiccheck.quality.config import SOURCES, QualityConfig
 from logiccheck.quality.rates import OutcomeCounts, dispositions_to_counts, outcome_rates
 from logiccheck.quality.repair import Repairer
 from logiccheck.quality.run import QualityResult, run_quality
+from logiccheck.scales.bridge import context_from_validation
+from logiccheck.scales.checks import scales_analysis
 
 MAX_HINTS = 200  # repair hints written to the summary (the solver runs once per failing respondent)
 
@@ -52,7 +57,7 @@ def _repair_hints(q: Questionnaire, frame: pd.DataFrame, result: QualityResult, 
 def _quality(
     q: Questionnaire, export: Path, mapping: DataMapping | None, config: QualityConfig, sf: pd.DataFrame | None,
     raw: pd.DataFrame,
-) -> tuple[QualityResult, set[str], pd.DataFrame]:
+) -> tuple[QualityResult, set[str], pd.DataFrame, ValidationResult]:
     """Route state from the data stage's reader and evaluator (one pass, cells kept), then
     the quality findings. `mapping` None: the default layout, and the quality checks read
     the export as it is; with a mapping, the state's columns are the export's own names
@@ -65,7 +70,7 @@ def _quality(
         raise ExportError(str(err)) from None
     state = state_from_validation(q, full)
     if mapping is None:
-        return run_quality(q, raw, config, sf, id_column="id", state=state), {""}, raw
+        return run_quality(q, raw, config, sf, id_column="id", state=state), {""}, raw, full
     for name in state.items:
         entry = q.symbols[name]
         if entry.stmt.type.kind == "multi" and mapping.multi.layout == "columns":
@@ -78,7 +83,25 @@ def _quality(
         if c in raw.columns and c not in typed.columns:
             typed[c] = raw[c].to_numpy()
     markers = {*mapping.blank_markers(), *(m.strip() for m in mapping.not_shown), *(m.strip() for m in mapping.unanswered)}
-    return run_quality(q, typed, config, sf, id_column="id", state=state), markers, typed
+    return run_quality(q, typed, config, sf, id_column="id", state=state), markers, typed, full
+
+
+def _scores(q: Questionnaire, full: ValidationResult, outcome: CleanOutcome) -> Analysis | None:
+    """Composite scores (`score_NAME`) of the kept respondents, appended to the cleaned export."""
+    if not q.scales:
+        return None
+    scales = scales_analysis(context_from_validation(q, full))
+    if scales is None:
+        return None
+    kept = outcome.kept if outcome.kept is not None else np.arange(len(outcome.cleaned))
+    for column, values in scales.columns.items():
+        outcome.cleaned[column] = [_score_text(v) for v in np.asarray(values, dtype=float)[kept]]
+    return scales
+
+
+def _score_text(value: float) -> str:
+    # Enough digits to round-trip a double; blank where no score.
+    return "" if value != value else repr(float(value))
 
 
 def clean_export(
@@ -101,7 +124,7 @@ def clean_export(
     sf = read_export(sample_frame) if sample_frame is not None else None
     if mapping is not None and config.speed.duration_column == "duration":
         config = config.model_copy(update={"speed": config.speed.model_copy(update={"duration_column": mapping.duration})})
-    result, markers, by_name = _quality(q, export, mapping, config, sf, frame)
+    result, markers, by_name, full = _quality(q, export, mapping, config, sf, frame)
     if policy.keep_dispositions is not None:
         known = {"complete", "partial", "break-off", *(e.name for e in q.entries if e.kind == "stop")}
         unknown = [d for d in policy.keep_dispositions if d not in known]
@@ -111,6 +134,8 @@ def clean_export(
                 f"the dispositions are {', '.join(sorted(known))}"
             )
     outcome = apply_policy(q, frame, result, policy, markers)
+
+    scales = _scores(q, full, outcome)
 
     stem = export.stem
     main_out = out / f"{stem}.cleaned{export.suffix.lower()}"
@@ -147,6 +172,9 @@ def clean_export(
         "repair_hints": _repair_hints(q, by_name, result, config),
         "notes": [*result.notes, BIAS_WARNING],
     }
+    if scales is not None:
+        summary.update(scales.summary)
+        summary["added_columns"] = list(scales.columns)
     findings = pd.DataFrame(
         [{"row": f.row + 1, "respondent": f.respondent, "check": f.check, "severity": f.severity.value,
           "item": f.item or "", "value": "" if f.value is None else str(f.value), "message": f.message}

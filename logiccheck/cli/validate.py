@@ -18,6 +18,7 @@ from logiccheck.quality.config import QualityConfig
 from logiccheck.report.data_csv import items_csv, write_csv_dir
 from logiccheck.report.data_json import validation_json
 from logiccheck.report.data_text import render_validation
+from logiccheck.scales.bridge import attach_scales
 
 DATA_FORMATS = ["text", "json", "csv", "sarif", "junit", "github", "html"]
 PROGRESS_AFTER = 1.5  # seconds before a progress bar appears
@@ -118,6 +119,7 @@ def run_validation(
             loaded.questionnaire, data, mapping, encoding=encoding, chunk_rows=chunk_rows, keep_cells=True, progress=progress
         )
         result = attach_quality(loaded.questionnaire, result, data, mapping, _configured_quality(loaded), encoding=encoding)
+        attach_scales(loaded.questionnaire, result)
         _apply_check_settings(result, loaded.questionnaire.file)
         return result
     except DataReadError as err:

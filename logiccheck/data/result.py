@@ -41,6 +41,8 @@ class ValidationResult:
     unknown_columns: list[str] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)
     source: str | None = None
+    # Results beyond findings (checks.analyses.Analysis by name); their sections join the JSON.
+    analyses: dict[str, Any] = field(default_factory=dict)
     _findings: list[Finding] | None = field(default=None, repr=False)
 
     @property
@@ -109,10 +111,13 @@ class ValidationResult:
             }
             for r in self.table.itertuples(index=False)
         ]
-        return {
+        out = {
             "respondents": int(self.respondents),
             "items": items,
             "findings": [f.to_json() for f in self.findings],
             "dispositions": dict(self.dispositions),
             "summary": self.severity_counts(),
         }
+        for analysis in self.analyses.values():
+            out.update(analysis.sections)
+        return out
