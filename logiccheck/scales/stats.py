@@ -101,10 +101,10 @@ def reliability(points: np.ndarray, level: float = 0.95) -> Reliability:
 def proportional_score(points: np.ndarray, steps: float, min_answered: int) -> np.ndarray:
     """Mean of the items' proportional scores (position / steps, in 0..1) over the answered
     items, for respondents who answered at least `min_answered`; NaN for the others."""
-    answered = (~np.isnan(points)).sum(axis=1)
-    with np.errstate(invalid="ignore"):
-        mean = np.nanmean(points, axis=1) / steps if points.shape[1] else np.full(points.shape[0], np.nan)
-    return np.where(answered >= max(min_answered, 1), mean, np.nan)
+    answered = ~np.isnan(points)
+    count = answered.sum(axis=1)
+    mean = np.where(answered, points, 0.0).sum(axis=1) / np.maximum(count, 1) / steps
+    return np.where(count >= max(min_answered, 1), mean, np.nan)
 
 
 def top_box_score(points: np.ndarray, steps: float, top: int, min_answered: int) -> np.ndarray:
@@ -114,7 +114,7 @@ def top_box_score(points: np.ndarray, steps: float, top: int, min_answered: int)
     count = answered.sum(axis=1)
     with np.errstate(invalid="ignore"):
         hit = (points >= steps - top + 1) & answered
-        share = hit.sum(axis=1) / count
+    share = hit.sum(axis=1) / np.maximum(count, 1)
     return np.where(count >= max(min_answered, 1), share, np.nan)
 
 
