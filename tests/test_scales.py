@@ -281,3 +281,48 @@ def test_validate_json_and_clean_outputs(tmp_path: Path) -> None:
     np.testing.assert_array_equal(got, want[rows])
     text = run_cli("validate", str(spec), "--data", str(export)).stdout
     assert "staff" in text and "alpha" in text.lower()
+
+
+def test_signed_bar_cells() -> None:
+    from logiccheck.report.bars import signed_bar_cells
+
+    assert signed_bar_cells(0.6, 10) == "     │███  "
+    assert signed_bar_cells(-0.4, 10) == "   ▓▓│     "
+    assert signed_bar_cells(None, 10) == "     │     "
+
+
+def test_terminal_html_notebook_and_picture_show_the_scales(tmp_path: Path) -> None:
+    from rich.console import Console
+
+    from logiccheck.api import load
+    from logiccheck.report.graph_data import build_drawing
+    from logiccheck.report.html import render_fragment, render_html
+    from logiccheck.report.report_data import from_validation
+    from logiccheck.report.scale_text import render_scales
+    from logiccheck.scales.bridge import attach_scales
+
+    frame = _export(4, n=150)
+    frame["staff_quick"] = frame["staff_rude"]  # worded the other way: a misfit
+    spec = tmp_path / "museum.qlc"
+    spec.write_text(SPEC)
+    export = tmp_path / "museum.csv"
+    frame.to_csv(export, index=False)
+    q = load_text(SPEC, str(spec)).questionnaire
+    result = validate(q, export, keep_cells=True)
+    attach_scales(q, result)
+    scales = result.analyses["scales"].sections["scales"]
+    console = Console(width=100, record=True, color_system=None)
+    render_scales(console, scales)
+    text = console.export_text()
+    assert "scale staff: alpha" in text and "staff_rude (reversed)" in text and "▓" in text
+    data = from_validation(q, result)
+    page = render_html(data)
+    assert 'id="scale-staff"' in page and 'class="num neg"' in page
+    assert 'id="scale-rooms"' in render_fragment(data)
+    view = load(spec).validate(export)
+    table = view.scales
+    assert set(table["scale"]) == {"staff", "rooms"}
+    row = table[(table["scale"] == "staff") & (table["item"] == "staff_quick")].iloc[0]
+    assert row["item_total"] < 0 and row["alpha"] == pytest.approx(scales[0]["alpha"])
+    details = {node.name: node.detail for node in build_drawing(q).nodes.values()}
+    assert details["staff_rude"].endswith("scale staff reversed") and "scale rooms" in details["room_light"]
