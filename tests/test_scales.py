@@ -326,3 +326,17 @@ def test_terminal_html_notebook_and_picture_show_the_scales(tmp_path: Path) -> N
     assert row["item_total"] < 0 and row["alpha"] == pytest.approx(scales[0]["alpha"])
     details = {node.name: node.detail for node in build_drawing(q).nodes.values()}
     assert details["staff_rude"].endswith("scale staff reversed") and "scale rooms" in details["room_light"]
+
+
+def test_clinic_demo_shows_the_misfit_item() -> None:
+    from logiccheck.checks.data_runner import run_data_checks
+    from logiccheck.checks.registry import all_checks
+    from logiccheck.loader import load_file
+    from tests.conftest import SPECS
+
+    q = load_file(SPECS / "clinic_visit.qlc").questionnaire
+    ctx = context_from_validation(q, validate(q, SPECS / "clinic_visit_export.csv", keep_cells=True))
+    wanted = ("low-reliability", "scale-misfit")
+    blocks = run_data_checks(ctx, disable=[c for c in all_checks() if c not in wanted])
+    assert [(b.check, b.item) for b in blocks] == [("scale-misfit", "bld_privacy")]
+    assert [m.name for m in q.scales["building"].items if m.reversed] == ["bld_crowded"]
