@@ -340,3 +340,21 @@ def test_clinic_demo_shows_the_misfit_item() -> None:
     blocks = run_data_checks(ctx, disable=[c for c in all_checks() if c not in wanted])
     assert [(b.check, b.item) for b in blocks] == [("scale-misfit", "bld_privacy")]
     assert [m.name for m in q.scales["building"].items if m.reversed] == ["bld_crowded"]
+
+
+@pytest.mark.parametrize("name", ["scale-mixed-answers", "scale-unreachable"])
+def test_docs_examples_of_the_scale_spec_checks_behave(name: str) -> None:
+    from logiccheck.checks.registry import check_info
+
+    info = check_info(name)
+    bad = run_checks(load_text('survey s "S"\n' + info.bad + "\n", "bad.qlc"))
+    good = run_checks(load_text('survey s "S"\n' + info.good + "\n", "good.qlc"))
+    assert name in {d.check for d in bad}
+    assert not [d for d in good if d.severity.value == "error"], [d.message for d in good]
+
+
+def test_explain_prints_the_scale_checks() -> None:
+    for name in ("scale-mixed-answers", "scale-unreachable", "low-reliability", "scale-misfit", "inconsistent-answers"):
+        done = run_cli("explain", name)
+        assert done.returncode == 0 and name in done.stdout
+    assert "rule of thumb" in run_cli("explain", "low-reliability").stdout

@@ -103,7 +103,9 @@ def proportional_score(points: np.ndarray, steps: float, min_answered: int) -> n
     items, for respondents who answered at least `min_answered`; NaN for the others."""
     answered = ~np.isnan(points)
     count = answered.sum(axis=1)
-    mean = np.where(answered, points, 0.0).sum(axis=1) / np.maximum(count, 1) / steps
+    # Item scores first, then their mean: the order the rule is stated in, so a score
+    # recomputed by hand from the item scores agrees to the last digit.
+    mean = np.where(answered, points / steps, 0.0).sum(axis=1) / np.maximum(count, 1)
     return np.where(count >= max(min_answered, 1), mean, np.nan)
 
 
