@@ -358,3 +358,15 @@ def test_explain_prints_the_scale_checks() -> None:
         done = run_cli("explain", name)
         assert done.returncode == 0 and name in done.stdout
     assert "rule of thumb" in run_cli("explain", "low-reliability").stdout
+
+
+def test_unknown_and_repeated_names_in_scales_use_the_name_checks() -> None:
+    spec = AGREE5 + ('owns_bike: single agree5 "I like my bike."\n'
+                     'scale mobility "Getting around"\n  owns_bike\n  owns_bik\n  owns_bike\n'
+                     'scale mobility "Again"\n  owns_bike\n')
+    line = spec.count("\n", 0, spec.index("scale mobility")) + 1
+    got = [(d.check, d.line, d.column, d.message) for d in run_checks(load_text(spec, "m.qlc"))
+           if d.check in ("unknown-name", "duplicate-name")]
+    assert sorted((c, ln, col) for c, ln, col, _ in got) == [
+        ("duplicate-name", line + 3, 3), ("duplicate-name", line + 4, 7), ("unknown-name", line + 2, 3)]
+    assert any(c == "unknown-name" and "did you mean `owns_bike`" in m for c, _, _, m in got)

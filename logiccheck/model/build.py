@@ -325,7 +325,7 @@ class Builder:
                 ))
                 continue
             word = child.data[6:]  # scale_min, scale_top
-            number = child.children[0]
+            number = child.children[-1]
             span = self.span_tree(child)
             if word in values:
                 shown = "min" if word == "min" else "score top"

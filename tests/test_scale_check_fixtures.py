@@ -1,6 +1,6 @@
-"""Data and quality checks declared with `data_check` that have a fixture folder
-(tests/data_checks/<check>/: spec.qlc, export.csv, expected.json) give exactly the expected
-findings: [{"check", "row" (1-based data row, null for a file-level finding), "item"}]."""
+"""The scale checks (`data_check` units) give exactly the findings their fixture folders
+expect (tests/data_checks/<check>/: spec.qlc, export.csv, expected.json, a list of
+{"check", "row" (1-based data row, null for a file-level finding), "item"})."""
 
 from __future__ import annotations
 
@@ -17,7 +17,8 @@ from logiccheck.scales.bridge import context_from_validation
 
 FIXTURES = Path(__file__).resolve().parent / "data_checks"
 WITH_FIXTURES = sorted(p.name for p in FIXTURES.iterdir() if (p / "expected.json").is_file())
-# The scale checks must have one; older data checks are covered by their own tests.
+# The scale checks must have one. They run through `scales.bridge` until the pipeline
+# builds the context (its own fixture test then runs these folders too).
 REQUIRED = ("low-reliability", "scale-misfit", "inconsistent-answers")
 
 
