@@ -9,7 +9,6 @@ check `scale-misfit` points at it). Run from the repository root:
 
 from __future__ import annotations
 
-import os
 import sys
 from pathlib import Path
 
@@ -20,6 +19,7 @@ import pyarrow as pa
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
+from logiccheck.atomic import write_text_atomic  # noqa: E402
 from logiccheck.data.simulate import simulate  # noqa: E402
 from logiccheck.loader import load_file  # noqa: E402
 
@@ -59,9 +59,7 @@ def build() -> pd.DataFrame:
 
 def main() -> None:
     frame = build()
-    tmp = OUT.with_name(f".{OUT.name}.tmp")
-    frame.to_csv(tmp, index=False, lineterminator="\n")
-    os.replace(tmp, OUT)
+    write_text_atomic(OUT, lambda fh: frame.to_csv(fh, index=False, lineterminator="\n"))
     print(f"wrote {OUT.relative_to(ROOT)} ({len(frame)} respondents)")
 
 

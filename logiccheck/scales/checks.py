@@ -12,6 +12,7 @@ from logiccheck.checks.analyses import Analysis, analysis
 from logiccheck.checks.registry import data_check
 from logiccheck.data.findings import Hits
 from logiccheck.scales.compute import scale_results
+from logiccheck.scales.examples import AGREE5
 from logiccheck.scales.stats import opposite_ends
 
 if TYPE_CHECKING:
@@ -22,13 +23,7 @@ ALPHA_FLOOR = 0.7
 # An item whose removal raises alpha by at least this much does not fit (common practice, no source).
 MISFIT_RISE = 0.05
 
-_SCALE_SPEC = '''codes agree5
-  sd = 1 "Strongly disagree"
-  d  = 2 "Disagree"
-  n  = 3 "Neither"
-  a  = 4 "Agree"
-  sa = 5 "Strongly agree"
-svc_time: single agree5 "I was served quickly."
+_SCALE_SPEC = AGREE5 + '''svc_time: single agree5 "I was served quickly."
 svc_help: single agree5 "Staff were helpful."
 svc_rude: single agree5 "Staff were rude."
 '''

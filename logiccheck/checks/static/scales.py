@@ -8,14 +8,9 @@ from logiccheck.checks.context import LintContext
 from logiccheck.checks.registry import register
 from logiccheck.diagnostics import Diagnostic
 from logiccheck.scales.answers import scale_answers
+from logiccheck.scales.examples import AGREE5
 
-_CODES = '''codes agree5
-  sd = 1 "Strongly disagree"
-  d  = 2 "Disagree"
-  n  = 3 "Neither"
-  a  = 4 "Agree"
-  sa = 5 "Strongly agree"
-codes yesno
+_CODES = AGREE5 + '''codes yesno
   yes = 1 "Yes"
   no  = 2 "No"
 '''
