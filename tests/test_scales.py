@@ -13,11 +13,9 @@ import pingouin as pg
 import pytest
 
 from logiccheck.checks.runner import run_checks
-from logiccheck.data.validate import validate
 from logiccheck.loader import load_text
-from logiccheck.scales.bridge import context_from_validation
-from logiccheck.scales.checks import scales_analysis
-from logiccheck.scales.compute import scale_results
+from logiccheck.pipeline import PipelineResult, run_pipeline
+from logiccheck.scales.answers import answers_of
 from logiccheck.scales.stats import (
     alpha_if_deleted,
     corrected_item_total,
@@ -89,10 +87,18 @@ def _export(seed: int, n: int = 300) -> pd.DataFrame:
     return frame
 
 
-def _run(spec: str, frame: pd.DataFrame):  # type: ignore[no-untyped-def]
+def _run(spec: str, frame: pd.DataFrame) -> PipelineResult:
+    """The pipeline every command runs, on an invented export."""
     q = load_text(spec, "museum.qlc").questionnaire
-    result = validate(q, frame.astype(str).replace("nan", ""), keep_cells=True)
-    return q, context_from_validation(q, result)
+    return run_pipeline(q, frame.astype(str).replace("nan", ""))
+
+
+def _scales(result: PipelineResult) -> dict[str, dict]:
+    return {s["scale"]: s for s in result.analyses["scales"].sections["scales"]}
+
+
+def _rows(result: PipelineResult, check: str) -> list[int]:
+    return sorted({int(r) for b in result.blocks if b.check == check for r in b.rows.tolist()})
 
 
 def _answers(frame: pd.DataFrame, items: list[str], reversed_: dict[str, float]) -> pd.DataFrame:
@@ -111,25 +117,23 @@ ROOMS = ["room_light", "room_quiet", "room_crowded"]
 @pytest.mark.parametrize("seed", [1, 2, 3])
 def test_alpha_and_feldt_interval_match_pingouin(seed: int) -> None:
     frame = _export(seed)
-    _, ctx = _run(SPEC, frame)
-    results = scale_results(ctx)
+    results = _scales(_run(SPEC, frame))
     for name, items, flip in (("staff", STAFF, {"staff_rude": 6}), ("rooms", ROOMS, {"room_crowded": 10})):
         complete = _answers(frame, items, flip).dropna()
         # pingouin.cronbach_alpha: listwise complete cases when nan_policy="listwise"; its
         # interval is Feldt's, rounded to 3 decimals.
         alpha, ci = pg.cronbach_alpha(data=complete, ci=0.95, nan_policy="listwise")
-        rel = results[name].reliability
-        assert rel.n == len(complete)
-        assert rel.alpha == pytest.approx(alpha, abs=1e-6)
-        assert rel.alpha_ci is not None
-        assert rel.alpha_ci == pytest.approx(tuple(ci), abs=1e-3)
+        rel = results[name]
+        assert rel["n"] == len(complete)
+        assert rel["alpha"] == pytest.approx(alpha, abs=1e-6)
+        assert rel["alpha_ci"] == pytest.approx(list(ci), abs=1e-3)
         # alpha if deleted: pingouin on the other items of the same respondents.
-        for i, item in enumerate(items):
+        for item in items:
             others, _ = pg.cronbach_alpha(data=complete.drop(columns=[item]), ci=0.95)
-            assert rel.alpha_if_deleted[i] == pytest.approx(others, abs=1e-6)
+            assert rel["alpha_if_deleted"][item] == pytest.approx(others, abs=1e-6)
             # corrected item-total: pandas' Pearson correlation with the sum of the others.
             rest = complete.drop(columns=[item]).sum(axis=1)
-            assert rel.item_total[i] == pytest.approx(complete[item].corr(rest), abs=1e-6)
+            assert rel["item_total"][item] == pytest.approx(complete[item].corr(rest), abs=1e-6)
 
 
 def test_alpha_equals_the_standardised_formula_for_parallel_items() -> None:
@@ -164,8 +168,7 @@ def test_statistics_are_none_where_undefined() -> None:
 
 def test_composite_scores_match_an_independent_computation() -> None:
     frame = _export(5, n=200)
-    _, ctx = _run(SPEC, frame)
-    scores = scales_analysis(ctx).columns  # type: ignore[union-attr]
+    scores = _run(SPEC, frame).analyses["scales"].columns
     # Proportional: (value − lo) / (hi − lo) after reversal, mean over answered items,
     # blank under `min 3` answers.
     staff = (_answers(frame, STAFF, {"staff_rude": 6}) - 1) / 4
@@ -180,12 +183,7 @@ def test_composite_scores_match_an_independent_computation() -> None:
 
 def test_inconsistent_answers_match_a_pairwise_implementation() -> None:
     frame = _export(7, n=250)
-    _, ctx = _run(SPEC, frame)
-    from logiccheck.checks.data_runner import run_data_checks
-    from logiccheck.checks.registry import all_checks
-
-    others = [c for c in all_checks() if c != "inconsistent-answers"]
-    got = sorted({int(r) for b in run_data_checks(ctx, disable=others) for r in b.rows.tolist()})
+    got = _rows(_run(SPEC, frame), "inconsistent-answers")
     # Independent: every pair of items of one scale, one at the lowest option and the
     # other at the highest, after reversal (common practice, no source).
     want: set[int] = set()
@@ -210,10 +208,13 @@ scale both "Both" min 1
   a2 reversed
 '''
     frame = pd.DataFrame({"id": ["1", "2", "3"], "a1": ["10", "5", "1"], "a2": ["10", "", "1"]})
-    _, ctx = _run(spec, frame)
-    res = scale_results(ctx)["both"]
-    np.testing.assert_array_equal(res.points, [[0, 2], [1, np.nan], [2, 0]])
-    np.testing.assert_allclose(res.score, [0.5, 0.5, 0.5])
+    q = load_text(spec, "odd.qlc").questionnaire
+    answers = answers_of(q, "a1")
+    assert not isinstance(answers, str)
+    values = np.array([10.0, 5.0, 1.0, np.nan, 7.0])
+    np.testing.assert_array_equal(answers.positions(values), [0, 1, 2, np.nan, np.nan])
+    np.testing.assert_array_equal(answers.positions(values, reversed_=True), [2, 1, 0, np.nan, np.nan])
+    np.testing.assert_allclose(_run(spec, frame).analyses["scales"].columns["score_both"], [0.5, 0.5, 0.5])
 
 
 def test_scale_positions_on_every_part() -> None:
@@ -273,8 +274,7 @@ def test_validate_json_and_clean_outputs(tmp_path: Path) -> None:
     assert summary["added_columns"] == ["score_staff", "score_rooms"]
     assert "mean of proportional item scores" in summary["scales"]["score_staff"]
     # Scores of the kept respondents, exactly as validate computes them.
-    _, ctx = _run(SPEC, frame)
-    want = scales_analysis(ctx).columns["score_staff"]  # type: ignore[union-attr]
+    want = np.asarray(_run(SPEC, frame).analyses["scales"].columns["score_staff"], dtype=float)
     kept = frame["id"].astype(str).tolist()
     rows = [kept.index(i) for i in cleaned["id"]]
     got = pd.to_numeric(cleaned["score_staff"].replace("", np.nan)).to_numpy()
@@ -299,7 +299,6 @@ def test_terminal_html_notebook_and_picture_show_the_scales(tmp_path: Path) -> N
     from logiccheck.report.html import render_fragment, render_html
     from logiccheck.report.report_data import from_validation
     from logiccheck.report.scale_text import render_scales
-    from logiccheck.scales.bridge import attach_scales
 
     frame = _export(4, n=150)
     frame["staff_quick"] = frame["staff_rude"]  # worded the other way: a misfit
@@ -308,8 +307,7 @@ def test_terminal_html_notebook_and_picture_show_the_scales(tmp_path: Path) -> N
     export = tmp_path / "museum.csv"
     frame.to_csv(export, index=False)
     q = load_text(SPEC, str(spec)).questionnaire
-    result = validate(q, export, keep_cells=True)
-    attach_scales(q, result)
+    result = run_pipeline(q, export)
     scales = result.analyses["scales"].sections["scales"]
     console = Console(width=100, record=True, color_system=None)
     render_scales(console, scales)
@@ -329,16 +327,14 @@ def test_terminal_html_notebook_and_picture_show_the_scales(tmp_path: Path) -> N
 
 
 def test_clinic_demo_shows_the_misfit_item() -> None:
-    from logiccheck.checks.data_runner import run_data_checks
-    from logiccheck.checks.registry import all_checks
     from logiccheck.loader import load_file
     from tests.conftest import SPECS
 
-    q = load_file(SPECS / "clinic_visit.qlc").questionnaire
-    ctx = context_from_validation(q, validate(q, SPECS / "clinic_visit_export.csv", keep_cells=True))
-    wanted = ("low-reliability", "scale-misfit")
-    blocks = run_data_checks(ctx, disable=[c for c in all_checks() if c not in wanted])
-    assert [(b.check, b.item) for b in blocks] == [("scale-misfit", "bld_privacy")]
+    loaded = load_file(SPECS / "clinic_visit.qlc")
+    q = loaded.questionnaire
+    result = run_pipeline(loaded, SPECS / "clinic_visit_export.csv")
+    got = [(b.check, b.item) for b in result.blocks if b.check in ("low-reliability", "scale-misfit")]
+    assert got == [("scale-misfit", "bld_privacy")]
     assert [m.name for m in q.scales["building"].items if m.reversed] == ["bld_crowded"]
 
 

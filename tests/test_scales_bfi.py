@@ -16,12 +16,8 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from logiccheck.checks.data_runner import run_data_checks
-from logiccheck.checks.registry import all_checks
-from logiccheck.data.validate import validate
 from logiccheck.loader import load_text
-from logiccheck.scales.bridge import context_from_validation
-from logiccheck.scales.compute import scale_results
+from logiccheck.pipeline import run_pipeline
 
 # The keys of the five scales as psych's documentation of bfi gives them (a minus = reversed).
 SCALES = {
@@ -88,12 +84,12 @@ def bfi(tmp_path_factory: pytest.TempPathFactory) -> Path:
     return folder
 
 
-def _run(folder: Path, marked: bool):  # type: ignore[no-untyped-def]
+def _run(folder: Path, marked: bool) -> tuple[dict[str, dict], list]:
+    """The pipeline every command runs: each scale's JSON entry, and the finding blocks."""
     q = load_text(_spec(marked), "bfi.qlc").questionnaire
-    ctx = context_from_validation(q, validate(q, folder / "bfi.csv", keep_cells=True))
-    others = [c for c in all_checks() if c not in ("low-reliability", "scale-misfit")]
-    blocks = run_data_checks(ctx, disable=others)
-    return scale_results(ctx), blocks
+    result = run_pipeline(q, folder / "bfi.csv")
+    scales = {s["scale"]: s for s in result.analyses["scales"].sections["scales"]}
+    return scales, result.blocks
 
 
 def test_bfi_figures_equal_psych(bfi: Path) -> None:
@@ -101,12 +97,15 @@ def test_bfi_figures_equal_psych(bfi: Path) -> None:
     results, blocks = _run(bfi, marked=True)
     assert len(pd.read_csv(bfi / "bfi.csv")) == 2800
     for name, rows in ref.groupby("scale", sort=False):
-        rel = results[name].reliability
-        assert rel.n == rows["n"].iloc[0]
-        assert rel.alpha == pytest.approx(rows["alpha"].iloc[0], abs=1e-6)
-        assert rel.alpha_ci == pytest.approx((rows["lower"].iloc[0], rows["upper"].iloc[0]), abs=1e-3)
-        np.testing.assert_allclose(rel.alpha_if_deleted, rows["alpha_drop"].to_numpy(), rtol=0, atol=1e-6)
-        np.testing.assert_allclose(rel.item_total, rows["r_drop"].to_numpy(), rtol=0, atol=1e-6)
+        rel = results[name]
+        items = [i.lower() for i in rows["item"]]
+        assert rel["n"] == rows["n"].iloc[0]
+        assert rel["alpha"] == pytest.approx(rows["alpha"].iloc[0], abs=1e-6)
+        assert rel["alpha_ci"] == pytest.approx([rows["lower"].iloc[0], rows["upper"].iloc[0]], abs=1e-3)
+        got_drop = [rel["alpha_if_deleted"][i] for i in items]
+        got_r = [rel["item_total"][i] for i in items]
+        np.testing.assert_allclose(got_drop, rows["alpha_drop"].to_numpy(), rtol=0, atol=1e-6)
+        np.testing.assert_allclose(got_r, rows["r_drop"].to_numpy(), rtol=0, atol=1e-6)
     low = [b.item for b in blocks if b.check == "low-reliability"]
     under = sorted(ref.loc[ref["alpha"] < 0.7, "scale"].unique())
     assert low == under == ["openness"]

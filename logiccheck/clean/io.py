@@ -1,4 +1,4 @@
-"""Reading an export cell-exactly, and writing every output atomically."""
+"""Writing every `clean` output atomically (exports are read by `data/readers.py`, the one reader)."""
 
 from __future__ import annotations
 
@@ -12,7 +12,8 @@ import pandas as pd
 from logiccheck.atomic import atomic_write
 from logiccheck.clean.sheet import escape, unescape
 
-FORMATS = {".csv": "csv", ".parquet": "parquet", ".xlsx": "xlsx"}
+FORMATS = {".csv": "csv", ".tsv": "tsv", ".tab": "tsv", ".txt": "csv", ".parquet": "parquet", ".pq": "parquet",
+           ".xlsx": "xlsx", ".jsonl": "jsonl", ".ndjson": "jsonl"}
 
 
 class ExportError(ValueError):
@@ -22,33 +23,8 @@ class ExportError(ValueError):
 def export_format(path: Path) -> str:
     fmt = FORMATS.get(path.suffix.lower())
     if fmt is None:
-        raise ExportError(f"{path}: unsupported export format {path.suffix!r}; use .csv, .parquet or .xlsx")
+        raise ExportError(f"{path}: unsupported export format {path.suffix!r}; use .csv, .tsv, .xlsx, .parquet or .jsonl")
     return fmt
-
-
-def read_export(path: str | Path) -> pd.DataFrame:
-    """Every cell as the exact text of the file ("" = empty), so that cleaning and its
-    reversal are exact. Parquet values are turned into text the same way each time."""
-    path = Path(path)
-    fmt = export_format(path)
-    if not path.is_file():
-        raise ExportError(f"{path}: no such export file")
-    try:
-        if fmt == "csv":
-            frame = pd.read_csv(path, dtype=str, keep_default_na=False, na_filter=False, encoding="utf-8")
-        elif fmt == "xlsx":
-            frame = pd.read_excel(path, dtype=str, keep_default_na=False, na_filter=False)
-        else:
-            frame = pd.read_parquet(path)
-            frame = frame.astype(object).where(frame.notna(), "").astype(str)
-    except UnicodeDecodeError as err:
-        raise ExportError(f"{path}: not UTF-8 text (byte {err.start}); export as UTF-8") from None
-    except (pd.errors.ParserError, pd.errors.EmptyDataError, ValueError, OSError) as err:
-        raise ExportError(f"{path}: cannot read the export ({str(err).splitlines()[0]})") from None
-    dup = frame.columns[frame.columns.duplicated()].tolist()
-    if dup:
-        raise ExportError(f"{path}: column {dup[0]!r} appears twice; give every column its own name")
-    return frame
 
 
 def file_hash(path: str | Path) -> str:
@@ -63,9 +39,14 @@ def sheet_frame(frame: pd.DataFrame, safe: bool) -> pd.DataFrame:
     return frame.map(escape) if safe else frame
 
 
-def write_table(frame: pd.DataFrame, path: Path, fmt: str, sheet_safe: bool) -> None:
-    if fmt == "csv":
-        atomic_write(path, lambda p: sheet_frame(frame, sheet_safe).to_csv(p, index=False, encoding="utf-8"))
+def write_table(frame: pd.DataFrame, path: Path, fmt: str, sheet_safe: bool, delimiter: str = ",") -> None:
+    """`frame` holds text cells ("" = blank); CSV and TSV keep the export's delimiter."""
+    if fmt in ("csv", "tsv"):
+        sep = "\t" if fmt == "tsv" else delimiter
+        atomic_write(path, lambda p: sheet_frame(frame, sheet_safe).to_csv(p, index=False, encoding="utf-8", sep=sep))
+    elif fmt == "jsonl":
+        typed = frame.replace("", None)
+        atomic_write(path, lambda p: typed.to_json(p, orient="records", lines=True, force_ascii=False))
     elif fmt == "xlsx":
         atomic_write(path, lambda p: sheet_frame(frame, sheet_safe).to_excel(p, index=False, engine="openpyxl"))
     else:

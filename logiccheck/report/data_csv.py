@@ -5,6 +5,7 @@ from __future__ import annotations
 import csv
 import io
 from pathlib import Path
+from typing import TextIO
 
 import pyarrow as pa
 import pyarrow.csv as pacsv
@@ -22,13 +23,19 @@ def items_csv(result: ValidationResult) -> str:
     return buf.getvalue()
 
 
-def write_findings_csv(result: ValidationResult, fh: io.TextIOBase) -> None:
-    """Every finding, one row each; large blocks go through pyarrow's CSV writer."""
+def write_findings_csv(result: ValidationResult, fh: TextIO, *, sheet_safe: bool = False) -> None:
+    """Every finding, one row each, in FINDING_COLUMNS order: `validate --format csv` and
+    `clean`'s findings.csv. `sheet_safe` neutralises cells a spreadsheet would run as a
+    formula. Large plain blocks go through pyarrow's CSV writer."""
+    from logiccheck.clean.sheet import escape
+
     writer = csv.writer(fh, lineterminator="\n")
     writer.writerow(FINDING_COLUMNS)
     for block in result.blocks:
-        if block.rows.size < ARROW_BLOCK or "{value}" in block.message:
-            writer.writerows(["" if v is None else v for v in rec] for rec in block.rows_out())
+        if sheet_safe or block.rows.size < ARROW_BLOCK or "{value}" in block.message or block.messages is not None:
+            for rec in block.rows_out():
+                cells = ["" if v is None else str(v) for v in rec]
+                writer.writerow([escape(c) for c in cells] if sheet_safe else cells)
             continue
         k = block.rows.size
         table = pa.table(

@@ -11,11 +11,12 @@ from click.testing import CliRunner
 
 from logiccheck.atomic import atomic_write
 from logiccheck.clean.apply import reverse_audit
-from logiccheck.clean.io import file_hash, read_export, read_sheet_csv
+from logiccheck.clean.io import file_hash, read_sheet_csv
 from logiccheck.clean.policy import CleanPolicy, PolicyError, load_policy
 from logiccheck.clean.run import clean_export
 from logiccheck.clean.sheet import escape, unescape
 from logiccheck.cli.main import cli
+from logiccheck.data.readers import read_cells as read_export
 from logiccheck.loader import load_text
 from tests.quality.planted import COLUMNS, SPEC, build, card_row
 
@@ -153,7 +154,7 @@ def test_command_line(tmp_path: Path) -> None:
     assert summary["thresholds"]["speed"]["fraction_of_median"] == 0.3 and summary["removed"] == {"speeder": 1}
     # Input errors: one line, exit 2.
     res = runner.invoke(cli, ["clean", str(spec), "--data", str(tmp_path / "nope.csv"), "--out", str(tmp_path / "o")])
-    assert res.exit_code == 2 and "no such export file" in res.output
+    assert res.exit_code == 2 and "no such file" in res.output
     policy.write_text('[clean]\nrespondents = { speedy = "drop" }\n')
     res = runner.invoke(cli, ["clean", str(spec), "--data", str(data), "--out", str(tmp_path / "o"), "--policy", str(policy)])
     assert res.exit_code == 2 and "unknown check 'speedy'" in res.output and "Traceback" not in res.output
