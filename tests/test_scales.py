@@ -16,6 +16,7 @@ from logiccheck.checks.runner import run_checks
 from logiccheck.loader import load_text
 from logiccheck.pipeline import PipelineResult, run_pipeline
 from logiccheck.scales.answers import answers_of
+from logiccheck.scales.examples import AGREE5 as CODES_AGREE5
 from logiccheck.scales.stats import (
     alpha_if_deleted,
     corrected_item_total,
@@ -25,13 +26,7 @@ from logiccheck.scales.stats import (
 )
 from tests.cli_run import run_cli
 
-AGREE5 = '''codes agree5
-  sd = 1 "Strongly disagree"
-  d  = 2 "Disagree"
-  n  = 3 "Neither agree nor disagree"
-  a  = 4 "Agree"
-  sa = 5 "Strongly agree"
-
+AGREE5 = CODES_AGREE5 + '''
 nonresponse
   dk = 98 "Don't know"
   refused = 99 "Prefer not to say"
