@@ -29,6 +29,7 @@ CHECK_MODULES = (
     "logiccheck.data.checks",
     "logiccheck.quality.checks",
     "logiccheck.draft.mismatch",
+    "logiccheck.scales.checks",
 )
 
 

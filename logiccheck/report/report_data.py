@@ -31,6 +31,7 @@ class ReportData:
     dispositions: dict[str, int] = field(default_factory=dict)
     settings: dict[str, Any] = field(default_factory=dict)  # thresholds and policy used
     export: str | None = None  # the export's file name, when there is one
+    scales: list[dict[str, Any]] = field(default_factory=list)  # validate's "scales" section
 
     @property
     def has_data(self) -> bool:
@@ -161,6 +162,9 @@ def from_validation(
         extra = getattr(result, attr, None)
         if extra:
             used[attr] = extra.model_dump() if hasattr(extra, "model_dump") else extra
+    scales: list[dict[str, Any]] = []
+    for analysis in (getattr(result, "analyses", None) or {}).values():
+        scales.extend(analysis.sections.get("scales", []))
     return ReportData(
         questionnaire=q,
         diagnostics=list(diagnostics),
@@ -170,6 +174,7 @@ def from_validation(
         dispositions=_dispositions(getattr(result, "dispositions", None)),
         settings=used,
         export=export,
+        scales=scales,
     )
 
 
