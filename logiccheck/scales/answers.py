@@ -8,12 +8,14 @@ only computed for scales whose items all agree.
 from __future__ import annotations
 
 from dataclasses import dataclass
-
-import numpy as np
+from typing import TYPE_CHECKING
 
 from logiccheck.diagnostics import Span
 from logiccheck.model import nodes as n
 from logiccheck.model.questionnaire import Questionnaire
+
+if TYPE_CHECKING:
+    import numpy as np
 
 
 @dataclass(frozen=True)
@@ -45,6 +47,8 @@ class Answers:
     def positions(self, values: np.ndarray, reversed_: bool = False) -> np.ndarray:
         """Position of each value on the list (0..steps; reversed: steps..0), NaN where the
         value is none of the list's options (blank, invalid or a non-response code)."""
+        import numpy as np  # here, not at the top: `lint` loads this module and never needs numpy
+
         values = np.asarray(values, dtype=float)
         if self.kind == "range":
             lo, hi = self.values
