@@ -78,6 +78,22 @@ class Validation:
     def respondents(self) -> int | None:
         return self.data.respondents
 
+    @property
+    def scales(self) -> pd.DataFrame:
+        """One row per scale item: scale, item, reversed, alpha, alpha_ci_low/high, n,
+        alpha_if_deleted, item_total, scored, mean, sd (the scale's figures repeat per item)."""
+        rows = []
+        for s in self.data.scales:
+            ci = s.get("alpha_ci") or [None, None]
+            for item in s["items"]:
+                rows.append({"scale": s["scale"], "item": item, "reversed": item in s.get("reversed", []),
+                             "alpha": s["alpha"], "alpha_ci_low": ci[0], "alpha_ci_high": ci[1], "n": s["n"],
+                             "alpha_if_deleted": s["alpha_if_deleted"].get(item), "item_total": s["item_total"].get(item),
+                             "scored": s["scored"], "mean": s["mean"], "sd": s["sd"]})
+        columns = ["scale", "item", "reversed", "alpha", "alpha_ci_low", "alpha_ci_high", "n", "alpha_if_deleted",
+                   "item_total", "scored", "mean", "sd"]
+        return pd.DataFrame(rows, columns=columns)
+
     def summary(self) -> dict[str, Any]:
         return {
             "respondents": self.respondents,

@@ -174,12 +174,11 @@ def parse_config(table: dict[str, Any], where: str, checks: list[str] | None = N
             f"{where}: key `format`: {fmt!r} is not a format{_did_you_mean(str(fmt), list(FORMATS))} "
             f"(allowed: {', '.join(FORMATS)})"
         )
-    if checks is None:
-        from logiccheck.checks.registry import all_checks
+    from logiccheck.checks.registry import all_checks, is_check
 
-        checks = sorted(all_checks())
     for name, value in table.get("checks", {}).items():
-        if name not in checks:
+        if (name not in checks) if checks is not None else not is_check(name):
+            checks = checks if checks is not None else sorted(all_checks())
             raise ConfigError(
                 f"{where}: key `checks.{name}`: no check is called `{name}`{_did_you_mean(name, checks)} "
                 "(`logiccheck explain` lists them)"

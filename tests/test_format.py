@@ -151,3 +151,15 @@ def test_format_command(tmp_path: Path) -> None:
     ran = run_cli("format", str(bad), str(spec))
     assert ran.returncode == 2 and "bad.qlc:2" in ran.stderr
     assert bad.read_text(encoding="utf-8") == 'survey s "S"\na text "A?"\n'
+
+
+def test_scale_blocks_are_spaced_like_other_statements() -> None:
+    text = (
+        'survey s "S"\n\ncodes agree\n  a = 1 "A"\n  b = 2 "B"\n  c = 3 "C"\n\n'
+        'q1: single agree "One?"\nq2: single agree "Two?"\nq3: single agree "Three?"\n\n'
+        'scale  care   "Care"  min 2\n     q1\n     q2    reversed\n     q3\n'
+    )
+    out = format_text(text, "s.qlc")
+    assert out.endswith('scale care "Care" min 2\n  q1\n  q2 reversed\n  q3\n')
+    assert format_text(out, "s.qlc") == out
+    assert meaning(load_text(out, "s.qlc").questionnaire) == meaning(load_text(text, "s.qlc").questionnaire)

@@ -41,7 +41,7 @@ def run_checks(
     if shared is not None:
         ctx.shared = shared  # type: ignore[assignment]
     out: list[Diagnostic] = list(loaded.syntax)
-    checks = all_checks()
+    checks = all_checks(STAGE_ORDER)
     stages = STAGE_ORDER if solver else ("spec",)
     for stage in stages:
         for info in checks.values():

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -140,16 +141,19 @@ def apply_policy(
                         "old_value": json.dumps(original, ensure_ascii=False), "new_value": "", "check": check,
                         "reason": why})
         removed[check] = removed.get(check, 0) + 1
-    cleaned = cleaned.iloc[np.flatnonzero(kept)].reset_index(drop=True)
+    kept_rows = np.flatnonzero(kept)
+    cleaned = cleaned.iloc[kept_rows].reset_index(drop=True)
     audit = pd.DataFrame(records, columns=AUDIT_COLUMNS)
     if len(audit):
         audit = audit.sort_values(["row", "column"], kind="stable").reset_index(drop=True)
     return CleanOutcome(cleaned, audit, removed, dict(sorted(blanked.items())), np.flatnonzero(kept))
 
 
-def reverse_audit(cleaned: pd.DataFrame, audit: pd.DataFrame) -> pd.DataFrame:
+def reverse_audit(cleaned: pd.DataFrame, audit: pd.DataFrame, added: Sequence[str] = ()) -> pd.DataFrame:
     """Undo every change in `audit`: put removed respondents back at their rows and old
-    values back in their cells. Gives the original export's cells exactly."""
+    values back in their cells. Gives the original export's cells exactly. `added` names
+    columns the cleaner appended (summary.json's `added_columns`), dropped first."""
+    cleaned = cleaned.drop(columns=[c for c in added if c in cleaned.columns])
     audit = audit.astype({"row": int})
     removals = audit[audit["column"].fillna("") == ""]
     changes = audit[audit["column"].fillna("") != ""]

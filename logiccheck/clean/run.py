@@ -169,10 +169,15 @@ def clean_export(
     for analysis in result.analyses.values():
         summary.update(analysis.summary)
     cleaned = outcome.cleaned
+    added: list[str] = []
     for analysis in result.analyses.values():
         for name, values in analysis.columns.items():
             column = np.asarray(values, dtype=object)[outcome.kept]
             cleaned[name] = ["" if v is None or (isinstance(v, float) and v != v) else str(v) for v in column]
+            added.append(name)
+    if added:
+        # What `reverse_audit(cleaned, audit, added)` drops to rebuild the original export.
+        summary["added_columns"] = added
 
     out.mkdir(parents=True, exist_ok=True)
     write_table(cleaned, main_out, fmt, policy.sheet_safe, result.delimiter or ",")

@@ -30,7 +30,7 @@ FUNCTIONS = frozenset({"count", "answered", "asked"})
 WORDS = frozenset({"when", "require", "and", "or", "not", "in", "has", "any", "all", "seconds", "number", "decimal"})
 # Statement heads whose lines the formatter knows how to space.
 KNOWN_HEADS = frozenset(
-    {"survey", "codes", "nonresponse", "sample", "section", "grid", "let", "skip", "stop", "check"}
+    {"survey", "codes", "nonresponse", "sample", "section", "grid", "let", "skip", "stop", "check", "scale"}
 )
 CLAUSE_WORDS = frozenset({"when", "require", "seconds", "gate", "key", "required", "strict", "shuffled", "soft"})
 
@@ -180,6 +180,7 @@ def scan(text: str) -> list[Line]:
                 and head not in CLAUSE_WORDS
                 and not (len(toks) > 1 and toks[1].text in (":", "=") and toks[0].kind == "name")
                 and not _is_row(toks)
+                and not all(t.kind == "name" for t in toks)  # a scale's `ITEM [reversed]` line
             )
             if verbatim_below is None and unknown:
                 verbatim_below = level

@@ -10,6 +10,7 @@ from rich.text import Text
 from logiccheck.data.result import ValidationResult
 from logiccheck.diagnostics import SEVERITY_ORDER
 from logiccheck.report.bars import bar_text
+from logiccheck.report.scale_text import render_scales
 
 STYLE = {"error": "bold red", "warning": "yellow", "info": "cyan"}
 BAR_WIDTH = 6  # cells of the route bar (fits an 80-column terminal with the flag); 12 on wide ones
@@ -54,6 +55,9 @@ def render_validation(console: Console, result: ValidationResult, *, show: int =
     console.print(table)
     if len(result.table) > table_rows:
         console.print(f"[dim]… {len(result.table) - table_rows} more items (use --format csv for all)[/dim]")
+    for analysis in getattr(result, "analyses", {}).values():
+        if analysis.sections.get("scales"):
+            render_scales(console, analysis.sections["scales"])
     counts = result.counts_by_check()
     if not counts:
         console.print("[green]no findings[/green]")

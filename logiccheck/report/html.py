@@ -147,6 +147,41 @@ def _margins(sections: dict[str, Any], chart: bool) -> tuple[dict[str, Any] | No
             "respondents": weights.get("respondents", [])}, svg
 
 
+def _scale_rows(scales: list[dict[str, Any]]) -> list[dict[str, Any]]:
+    """Per scale: the heading figures and one row per item with the item-total bar as a
+    share of half the bar (left of the centre for a negative correlation)."""
+    from logiccheck.scales.checks import ALPHA_FLOOR, MISFIT_RISE
+
+    out = []
+    for s in scales:
+        alpha = s.get("alpha")
+        rows = []
+        for item in s["items"]:
+            r = s["item_total"].get(item)
+            without = s["alpha_if_deleted"].get(item)
+            rows.append({
+                "item": item,
+                "reversed": item in s.get("reversed", []),
+                "without": "–" if without is None else f"{without:.3f}",
+                "rises": without is not None and alpha is not None and without - alpha >= MISFIT_RISE,
+                "r": "–" if r is None else f"{r:.3f}",
+                "negative": r is not None and r < 0,
+                "width": 0 if r is None else round(min(abs(r), 1.0) * 50, 1),
+            })
+        ci = s.get("alpha_ci")
+        out.append({
+            "scale": s["scale"], "title": s.get("title", ""),
+            "alpha": "–" if alpha is None else f"{alpha:.3f}",
+            "low": alpha is not None and alpha < ALPHA_FLOOR,
+            "ci": f"{ci[0]:.3f} to {ci[1]:.3f}" if ci else "–",
+            "n": s["n"], "scored": s["scored"],
+            "mean": "–" if s.get("mean") is None else f"{s['mean']:.3f}",
+            "sd": "–" if s.get("sd") is None else f"{s['sd']:.3f}",
+            "rule": s.get("rule", ""), "rows": rows,
+        })
+    return out
+
+
 def report_context(data: ReportData, *, pictures: bool = True, chart: bool = True) -> dict[str, Any]:
     """Everything the templates show, as plain values (no live objects)."""
     q = data.questionnaire
@@ -188,6 +223,7 @@ def report_context(data: ReportData, *, pictures: bool = True, chart: bool = Tru
         "pictures": picture_svgs,
         "margins": margins,
         "margins_svg": margins_svg,
+        "scales": _scale_rows(data.scales),
     }
 
 

@@ -32,6 +32,7 @@ class ReportData:
     settings: dict[str, Any] = field(default_factory=dict)  # thresholds and policy used
     export: str | None = None  # the export's file name, when there is one
     sections: dict[str, Any] = field(default_factory=dict)  # analyses' sections (e.g. representativeness)
+    scales: list[dict[str, Any]] = field(default_factory=list)  # validate's "scales" section
 
     @property
     def has_data(self) -> bool:
@@ -162,6 +163,9 @@ def from_validation(
         extra = getattr(result, attr, None)
         if extra:
             used[attr] = extra.model_dump() if hasattr(extra, "model_dump") else extra
+    scales: list[dict[str, Any]] = []
+    for analysis in (getattr(result, "analyses", None) or {}).values():
+        scales.extend(analysis.sections.get("scales", []))
     return ReportData(
         questionnaire=q,
         diagnostics=list(diagnostics),
@@ -172,6 +176,7 @@ def from_validation(
         settings=used,
         export=export,
         sections={k: v for a in (getattr(result, "analyses", None) or {}).values() for k, v in a.sections.items()},
+        scales=scales,
     )
 
 

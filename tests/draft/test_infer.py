@@ -77,7 +77,8 @@ def test_a_scale_reaching_the_nonresponse_codes_is_strict_and_lints_clean() -> N
     })
     d = draft_table(table, "s.csv")
     assert d.inferred.nonresponse == [8, 9]
-    assert "scale: single" in d.text and d.text.split("scale: single", 1)[1].splitlines()[0].endswith("strict")
+    # `scale` starts a statement, so the column's item is named `scale_`.
+    assert "scale_: single" in d.text and d.text.split("scale_: single", 1)[1].splitlines()[0].endswith("strict")
     assert [x.check for x in run_checks(load_text(d.text, "s.qlc")) if x.severity.value == "error"] == []
 
 
