@@ -9,6 +9,7 @@ import numpy as np
 import pandas as pd
 
 from logiccheck.clean.policy import CleanPolicy
+from logiccheck.clean.sheet import ESCAPE_REASON, SHEET_ESCAPE, escape, needs_escape_any
 from logiccheck.model.questionnaire import Questionnaire
 from logiccheck.quality.run import QualityResult
 
@@ -103,6 +104,8 @@ def apply_policy(
                 if len(rows):
                     cleaned.iloc[rows, cleaned.columns.get_loc(col)] = ""
                     blanked[check] = blanked.get(check, 0) + len(rows)
+    if policy.sheet_safe:
+        records += _escape_records(cleaned, kept, state.ids)
     removed: dict[str, int] = {}
     for r, (check, why) in sorted(removed_rows.items()):
         original = {c: str(v) for c, v in frame.iloc[r].items()}
@@ -117,10 +120,30 @@ def apply_policy(
     return CleanOutcome(cleaned, audit, removed, blanked)
 
 
+def _escape_records(cleaned: pd.DataFrame, kept: np.ndarray, ids: list[str]) -> list[dict[str, object]]:
+    """One audit record per cell (and column name, row 0) the spreadsheet outputs escape."""
+    out: list[dict[str, object]] = []
+    for i in needs_escape_any([str(c) for c in cleaned.columns]):
+        name = str(cleaned.columns[i])
+        out.append({"row": 0, "respondent": "", "item": "", "column": name, "old_value": name,
+                    "new_value": escape(name), "check": SHEET_ESCAPE, "reason": ESCAPE_REASON})
+    for col in cleaned.columns:
+        cells = cleaned[col].astype(str).tolist()
+        for r in needs_escape_any(cells):
+            if kept[r]:
+                out.append({"row": r + 1, "respondent": ids[r], "item": "", "column": str(col), "old_value": cells[r],
+                            "new_value": escape(cells[r]), "check": SHEET_ESCAPE, "reason": ESCAPE_REASON})
+    return out
+
+
 def reverse_audit(cleaned: pd.DataFrame, audit: pd.DataFrame) -> pd.DataFrame:
     """Undo every change in `audit`: put removed respondents back at their rows and old
     values back in their cells. Gives the original export's cells exactly."""
     audit = audit.astype({"row": int})
+    header = audit[audit["row"] == 0]
+    names = {str(new): str(old) for old, new in zip(header["old_value"], header["new_value"], strict=True)}
+    cleaned = cleaned.rename(columns=lambda c: names.get(str(c), c))
+    audit = audit[audit["row"] != 0]
     removals = audit[audit["column"].fillna("") == ""]
     changes = audit[audit["column"].fillna("") != ""]
     removed_at = {int(r): json.loads(v) for r, v in zip(removals["row"], removals["old_value"], strict=True)}

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -10,7 +11,8 @@ import pandas as pd
 
 from logiccheck import __version__
 from logiccheck.clean.apply import CleanOutcome, apply_policy
-from logiccheck.clean.io import ExportError, export_format, file_hash, read_export, write_json, write_table
+from logiccheck.clean.io import ExportError, export_format, file_hash, read_export, write_json_to, write_table_to
+from logiccheck.clean.outset import output_names, write_set
 from logiccheck.clean.policy import BIAS_WARNING, CleanPolicy, PolicyError
 from logiccheck.data.mapping import DataMapping
 from logiccheck.data.readers import DataReadError
@@ -112,14 +114,7 @@ def clean_export(
             )
     outcome = apply_policy(q, frame, result, policy, markers)
 
-    stem = export.stem
-    main_out = out / f"{stem}.cleaned{export.suffix.lower()}"
-    targets = [main_out, out / f"{stem}.cleaned.csv", out / "audit.csv", out / "summary.json", out / "findings.csv"]
-    protected = {export.resolve(), *( [sample_frame.resolve()] if sample_frame else [] )}
-    for t in targets:
-        if t.resolve() in protected:
-            raise ExportError(f"{t}: would overwrite an input file; choose another --out folder")
-
+    names = output_names(export)
     stops = [e.name for e in q.entries if e.kind == "stop"]
     got = result.disposition_counts()
     # Every disposition listed, zero included, as `validate` reports them.
@@ -154,12 +149,12 @@ def clean_export(
         columns=["row", "respondent", "check", "severity", "item", "value", "message"],
     ).astype(str)
 
-    out.mkdir(parents=True, exist_ok=True)
-    write_table(outcome.cleaned, main_out, fmt, policy.sheet_safe)
+    safe = policy.sheet_safe
+    writers: dict[str, Callable[[Path], None]] = {names[0]: lambda p: write_table_to(outcome.cleaned, p, fmt, safe)}
     if fmt != "csv":
-        write_table(outcome.cleaned, targets[1], "csv", policy.sheet_safe)
-    write_table(outcome.audit.astype(str), targets[2], "csv", policy.sheet_safe)
-    write_table(findings, targets[4], "csv", policy.sheet_safe)
-    write_json(summary, targets[3])
-    written = [main_out, *([targets[1]] if fmt != "csv" else []), targets[2], targets[4], targets[3]]
+        writers[names[1]] = lambda p: write_table_to(outcome.cleaned, p, "csv", safe)
+    writers["audit.csv"] = lambda p: write_table_to(outcome.audit.astype(str), p, "csv", safe)
+    writers["findings.csv"] = lambda p: write_table_to(findings, p, "csv", safe)
+    writers["summary.json"] = lambda p: write_json_to(summary, p)
+    written = write_set(out, writers)
     return CleanRun(result, outcome, summary, written)

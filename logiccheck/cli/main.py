@@ -15,9 +15,17 @@ from logiccheck.cli.rates import rates_command
 from logiccheck.cli.report import report_command
 from logiccheck.cli.simulate import simulate_command
 from logiccheck.cli.validate import validate_command
+from logiccheck.safety.cli_guard import guarded
 
 
-@click.group(context_settings={"help_option_names": ["-h", "--help"]})
+class GuardedGroup(click.Group):
+    """Every command runs behind the path check and the one-line error net."""
+
+    def add_command(self, cmd: click.Command, name: str | None = None) -> None:
+        super().add_command(guarded(cmd), name)
+
+
+@click.group(cls=GuardedGroup, context_settings={"help_option_names": ["-h", "--help"]})
 @click.version_option(__version__, prog_name="logiccheck")
 def cli() -> None:
     """State questionnaire routing once; lint it before fielding, validate exports after."""
