@@ -9,6 +9,7 @@ from rich.text import Text
 
 from logiccheck.data.result import ValidationResult
 from logiccheck.report.bars import bar_text
+from logiccheck.report.textsafe import terminal_text
 
 STYLE = {"error": "bold red", "warning": "yellow", "info": "cyan"}
 SEVERITY_ORDER = {"error": 0, "warning": 1, "info": 2}
@@ -19,7 +20,7 @@ def render_validation(console: Console, result: ValidationResult, *, show: int =
     """The table (answered > expected highlighted), then up to `show` findings per check."""
     source = result.source or "export"
     table = Table(
-        title=f"{escape(source)}: {result.respondents} respondents",
+        title=f"{escape(terminal_text(source))}: {result.respondents} respondents",
         title_justify="left",
         header_style="bold",
         show_edge=False,
@@ -42,7 +43,7 @@ def render_validation(console: Console, result: ValidationResult, *, show: int =
         flag = "[bold red]> expected[/bold red]" if over else ""
         answered = f"[bold red]{r.answered}[/bold red]" if over else str(r.answered)
         table.add_row(
-            escape(r.item),
+            escape(terminal_text(r.item)),
             str(r.expected),
             answered,
             f"[red]{r.out_of_path}[/red]" if r.out_of_path else "0",
@@ -77,7 +78,7 @@ def render_validation(console: Console, result: ValidationResult, *, show: int =
         shown = 0
         for f in heads[:show]:
             where = f"row {f.row}, id {f.respondent}" if f.row is not None else "file"
-            console.print(f"  [dim]{escape(where)}:[/dim] {escape(f.message)}", highlight=False, soft_wrap=True)
+            console.print(f"  [dim]{escape(terminal_text(where))}:[/dim] {escape(terminal_text(f.message))}", highlight=False, soft_wrap=True)
             shown += 1
         if count > shown:
             console.print(f"  [dim]… and {count - shown} more (--format json or csv lists all)[/dim]", highlight=False)
@@ -90,4 +91,4 @@ def render_validation(console: Console, result: ValidationResult, *, show: int =
     ]
     console.print(f"{result.respondents} respondents validated: " + ", ".join(parts), highlight=False)
     for note in result.notes:
-        console.print(f"[dim]note: {escape(note)}[/dim]", highlight=False)
+        console.print(f"[dim]note: {escape(terminal_text(note))}[/dim]", highlight=False)

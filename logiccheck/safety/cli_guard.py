@@ -15,6 +15,7 @@ from typing import Any
 
 import click
 
+from logiccheck.safety.deep import run_deep
 from logiccheck.safety.paths import PathClash, guard_file_target, guard_folder, guard_outputs
 
 # Parameters that name an output; every other path parameter is an input.
@@ -133,7 +134,7 @@ def guarded(command: click.Command) -> click.Command:
 
         try:
             check_paths(command, kwargs)
-            return callback(*args, **kwargs)
+            return run_deep(lambda: callback(*args, **kwargs))
         except (click.exceptions.Exit, click.exceptions.Abort, click.ClickException, SystemExit, KeyboardInterrupt):
             raise
         except PathClash as err:
