@@ -12,6 +12,7 @@ import pandas as pd
 from logiccheck.atomic import atomic_write
 from logiccheck.clean.sheet import escape, unescape
 from logiccheck.safety.csvfile import read_csv_rows, write_csv_rows
+from logiccheck.safety.streams import spool
 
 FORMATS = {".csv": "csv", ".parquet": "parquet", ".xlsx": "xlsx"}
 
@@ -29,27 +30,34 @@ def export_format(path: Path) -> str:
 
 def read_export(path: str | Path) -> pd.DataFrame:
     """Every cell as the exact text of the file ("" = empty), so that cleaning and its
-    reversal are exact. Parquet values are turned into text the same way each time."""
+    reversal are exact. CSV and .xlsx go through the export reader every command uses;
+    Parquet values are turned into text the same way each time."""
     path = Path(path)
     fmt = export_format(path)
-    if not path.is_file():
-        raise ExportError(f"{path}: no such export file")
+    if fmt != "parquet":
+        return _read_text_export(path)
     try:
-        if fmt == "csv":
-            frame = pd.read_csv(path, dtype=str, keep_default_na=False, na_filter=False, encoding="utf-8")
-        elif fmt == "xlsx":
-            frame = pd.read_excel(path, dtype=str, keep_default_na=False, na_filter=False)
-        else:
-            frame = pd.read_parquet(path)
-            frame = frame.astype(object).where(frame.notna(), "").astype(str)
-    except UnicodeDecodeError as err:
-        raise ExportError(f"{path}: not UTF-8 text (byte {err.start}); export as UTF-8") from None
-    except (pd.errors.ParserError, pd.errors.EmptyDataError, ValueError, OSError) as err:
-        raise ExportError(f"{path}: cannot read the export ({str(err).splitlines()[0]})") from None
+        frame = pd.read_parquet(spool(path))
+        frame = frame.astype(object).where(frame.notna(), "").astype(str)
+    except (ValueError, OSError) as err:
+        raise ExportError(f"{path}: cannot read as Parquet ({str(err).splitlines()[0] if str(err) else type(err).__name__})") from None
     dup = frame.columns[frame.columns.duplicated()].tolist()
     if dup:
         raise ExportError(f"{path}: column {dup[0]!r} appears twice; give every column its own name")
     return frame
+
+
+def _read_text_export(path: Path) -> pd.DataFrame:
+    from logiccheck.data.readers import DataReadError, open_export
+
+    try:
+        export = open_export(path)
+        parts = [t.to_pandas(types_mapper=None) for t in export.chunks]
+    except DataReadError as err:
+        raise ExportError(str(err)) from None
+    frame = pd.concat(parts, ignore_index=True) if parts else pd.DataFrame(columns=export.columns)
+    frame = frame.astype(object).where(frame.notna(), "")
+    return frame.map(str).reset_index(drop=True) if len(frame) else frame.astype(str)
 
 
 def file_hash(path: str | Path) -> str:

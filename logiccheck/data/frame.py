@@ -7,6 +7,7 @@ one), so a stray "12a" becomes an invalid value rather than a silent NaN.
 
 from __future__ import annotations
 
+import re
 from collections.abc import Iterator
 from dataclasses import dataclass, field
 
@@ -268,8 +269,40 @@ def _numbers_distinct(d: Distinct, is_blank: np.ndarray) -> tuple[np.ndarray, np
                 parsed[i] = False
                 continue
             value[i] = v
+    parsed &= is_blank | strict_numbers(pc.utf8_trim_whitespace(d.dictionary))
     value = np.where(parsed, value, np.nan)
     return ~is_blank, value, parsed
+
+
+# A survey number: ASCII digits, an optional sign, point and exponent. Wider notions
+# (other scripts' digits, full-width digits, underscores) are not answers a survey
+# system writes, so they are invalid rather than quietly read.
+STRICT_NUMBER = r"^[+-]?([0-9]+(\.[0-9]*)?|\.[0-9]+)([eE][+-]?[0-9]+)?$"
+_STRICT_NUMBER_RE = re.compile(STRICT_NUMBER)
+_NONZERO_MANTISSA = r"^[+-]?[0-9.]*[1-9]"
+
+
+def strict_numbers(trimmed: pa.Array) -> np.ndarray:
+    """Per text: written as a survey number, and representable (a nonzero text that
+    would read as 0, such as 1e-400, is not)."""
+    if len(trimmed) == 0:
+        return np.zeros(0, dtype=bool)
+    ok = np.asarray(pc.fill_null(pc.match_substring_regex(trimmed, STRICT_NUMBER), False), dtype=bool)
+    if ok.any():
+        nonzero = np.asarray(pc.fill_null(pc.match_substring_regex(trimmed, _NONZERO_MANTISSA), False), dtype=bool)
+        value = np.asarray(pc.cast(pc.if_else(pa.array(ok), trimmed, pa.scalar("0")), pa.float64()).to_numpy(zero_copy_only=False))
+        ok &= ~(nonzero & (value == 0)) & np.isfinite(value)
+    return ok
+
+
+def strict_number(token: str) -> float | None:
+    """One text as a survey number, or None."""
+    if not _STRICT_NUMBER_RE.match(token):
+        return None
+    v = float(token)
+    if not np.isfinite(v) or (v == 0 and re.match(_NONZERO_MANTISSA, token)):
+        return None
+    return v
 
 
 def parse_numbers(arr: pa.Array | pa.ChunkedArray, blank: set[str]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -521,9 +554,8 @@ def _multi_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping, blank: s
                 token = token.strip()
                 if token == "" or token in blank:
                     continue
-                try:
-                    v = float(token)
-                except ValueError:
+                v = strict_number(token)
+                if v is None:
                     d_bad[i] = True
                     continue
                 j = position.get(int(v)) if v.is_integer() else None

@@ -152,7 +152,7 @@ def test_command_line(tmp_path: Path) -> None:
     assert summary["thresholds"]["speed"]["fraction_of_median"] == 0.3 and summary["removed"] == {"speeder": 1}
     # Input errors: one line, exit 2.
     res = runner.invoke(cli, ["clean", str(spec), "--data", str(tmp_path / "nope.csv"), "--out", str(tmp_path / "o")])
-    assert res.exit_code == 2 and "no such export file" in res.output
+    assert res.exit_code == 2 and "no such file" in res.output
     policy.write_text('[clean]\nrespondents = { speedy = "drop" }\n')
     res = runner.invoke(cli, ["clean", str(spec), "--data", str(data), "--out", str(tmp_path / "o"), "--policy", str(policy)])
     assert res.exit_code == 2 and "unknown check 'speedy'" in res.output and "Traceback" not in res.output
