@@ -113,6 +113,12 @@ def clean_export(
                 f"the dispositions are {', '.join(sorted(known))}"
             )
     outcome = apply_policy(q, frame, result, policy, markers)
+    if len(frame) and not len(outcome.cleaned):
+        why = ", ".join(f"{check} {n}" for check, n in sorted(outcome.removed.items()))
+        raise PolicyError(
+            f"the policy would remove every respondent ({why}); nothing was written. "
+            "Check [clean] respondents and keep_dispositions"
+        )
 
     names = output_names(export)
     stops = [e.name for e in q.entries if e.kind == "stop"]
