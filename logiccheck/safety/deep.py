@@ -25,19 +25,22 @@ def run_deep(fn: Callable[[], T]) -> T:
         except BaseException as err:  # noqa: BLE001 - handed back to the calling thread
             box["error"] = err
 
-    if sys.getrecursionlimit() < RECURSION_LIMIT:
-        sys.setrecursionlimit(RECURSION_LIMIT)
     old = threading.stack_size()
     try:
         threading.stack_size(STACK_BYTES)
     except (ValueError, RuntimeError):  # a platform without a settable stack: run here
         return fn()
+    limit = sys.getrecursionlimit()
+    sys.setrecursionlimit(max(limit, RECURSION_LIMIT))
     try:
         thread = threading.Thread(target=work, name="logiccheck-deep", daemon=True)
         thread.start()
     finally:
         threading.stack_size(old)
-    thread.join()
+    try:
+        thread.join()
+    finally:
+        sys.setrecursionlimit(limit)
     if "error" in box:
         raise box["error"]  # type: ignore[misc]
     return box["result"]  # type: ignore[return-value]
