@@ -38,11 +38,10 @@ def child(mode: str, path: str, spec: str) -> None:
         result = validate(q, path, keep_cells=False)
     elif mode == "cells":
         result = validate(q, path, keep_cells=True)
-    else:  # the command's path: validation and the quality checks
-        from logiccheck.cli.validate import run_validation
-        from logiccheck.data.mapping import DataMapping
+    else:  # the command's path: the pipeline (validation, dispositions, quality checks)
+        from logiccheck.pipeline import RunOptions, run_pipeline
 
-        result = run_validation(loaded, path, DataMapping(), None, 50_000, "never")
+        result = run_pipeline(loaded, path, RunOptions(chunk_rows=50_000))
     out = {"seconds": time.perf_counter() - t0, "findings": result.finding_count,
            "peak_mb": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024}
     print(json.dumps(out))

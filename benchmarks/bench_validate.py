@@ -55,20 +55,21 @@ def make_spec() -> str:
     return "\n".join(lines) + "\n"
 
 
-def generate(path: Path, rows: int) -> None:
+def generate(path: Path, rows: int, q: object = None, faults: float = 0.01) -> None:
     """Simulated export in chunks (with planted faults), appended to one CSV."""
     import pyarrow.csv as pacsv
 
     from logiccheck.data.simulate import simulate
     from logiccheck.loader import load_text
 
-    q = load_text(make_spec(), "bench.qlc").questionnaire
+    if q is None:
+        q = load_text(make_spec(), "bench.qlc").questionnaire
     tmp = path.with_name(path.name + ".part")
     writer = None
     done = 0
     while done < rows:
         n = min(GEN_CHUNK, rows - done)
-        table = simulate(q, n, seed=done, faults=0.01).table
+        table = simulate(q, n, seed=done, faults=faults).table  # type: ignore[arg-type]
         import pyarrow as pa
         import pyarrow.compute as pc
 

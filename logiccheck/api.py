@@ -194,33 +194,17 @@ class Survey:
 
         `mapping` is a mapping TOML path or a `logiccheck.data.DataMapping`; `frame` a
         sample-frame CSV; `keep_cells=True` keeps the respondent × item route arrays on
-        `.raw` (e.g. `.raw.item_states("trips")`). Raises `logiccheck.data.DataReadError` /
-        `MappingError` for bad input.
+        `.raw` (e.g. `.raw.item_states("trips")`). Runs the same pipeline as the commands;
+        bad input raises one of `logiccheck.pipeline.INPUT_ERRORS` (e.g. `DataReadError`).
         """
-        data_stage = importlib.import_module("logiccheck.data")  # pandas-heavy: load on first use
-        if mapping is None:
-            model = self.config().models.get("data")  # the configuration's [data] table
-            mapping_obj = model if isinstance(model, data_stage.DataMapping) else data_stage.DataMapping()
-        elif isinstance(mapping, (str, Path)):
-            mapping_obj = data_stage.load_mapping(mapping)
-        else:
-            mapping_obj = mapping
-        if frame is not None:
-            mapping_obj = mapping_obj.model_copy(update={"frame": str(frame)})
-        # The quality checks, as the validate command reports them; they read the cells,
-        # so keep them and the export is validated once.
-        quality = importlib.import_module("logiccheck.quality.attach")
-        policies = importlib.import_module("logiccheck.clean.policy")
-        raw = data_stage.validate(self.questionnaire, data, mapping_obj, keep_cells=True)
-        config = policies.configured_policy(self.path)[1] if self.path is not None else None
-        raw = quality.attach_quality(self.questionnaire, raw, data, mapping_obj, config)
-        checks = self.config()
-        raw.apply_check_settings(checks.disabled, checks.severity)
+        pipeline = importlib.import_module("logiccheck.pipeline")  # pandas-heavy: load on first use
+        options = pipeline.RunOptions(mapping=mapping, frame=frame, config=self.config())
+        raw = pipeline.run_pipeline(self.loaded, data, options)
         if not keep_cells:
             raw.due = raw.has_value = raw.valid = raw.frame = None
         from logiccheck.report.report_data import settings_used
 
-        used = settings_used(self.config(), mapping_obj)
+        used = settings_used(raw.config, raw.mapping)
         used.update(settings or {})
         export = str(data) if isinstance(data, (str, Path)) else None
         return self.validation_view(raw, settings=used, export=export)
@@ -248,28 +232,28 @@ class Survey:
         """
         run = importlib.import_module("logiccheck.clean.run")
         policies = importlib.import_module("logiccheck.clean.policy")
-        if self.path is not None:
-            configured, quality = policies.configured_policy(self.path)
-        else:
-            configured, quality = policies.CleanPolicy(), None
+        pipeline = importlib.import_module("logiccheck.pipeline")
+        config = self.config()  # found once for the policy, the mapping and the thresholds
+        configured = config.models.get("clean")
+        quality = None
         if policy is None:
-            chosen = configured
+            chosen = configured if isinstance(configured, policies.CleanPolicy) else policies.CleanPolicy()
         elif isinstance(policy, (str, Path)):
             chosen, quality = policies.load_policy(policy)
         elif isinstance(policy, Mapping):
             chosen = policies.CleanPolicy.model_validate(dict(policy))
         else:
             chosen = policy
+        options = pipeline.RunOptions(frame=frame, config=config, quality=quality)
         with tempfile.TemporaryDirectory(prefix="logiccheck-clean-") as tmp:
             export = Path(tmp) / "export.csv"
             if isinstance(data, pd.DataFrame):
-                data.to_csv(export, index=False)  # the clean stage reads files; a frame goes via a temp CSV
+                data.to_csv(export, index=False)  # the cleaned file is written in the export's format: a frame goes as CSV
             else:
                 export = Path(data)
             target = Path(out) if out is not None else Path(tmp) / "out"
             target.mkdir(parents=True, exist_ok=True)
-            done = run.clean_export(self.questionnaire, export, target, chosen, quality,
-                                    sample_frame=Path(frame) if frame is not None else None)
+            done = run.clean_export(self.loaded, export, target, chosen, options=options)
         return Cleaning(done, kept=out is not None)
 
     def picture(self, fmt: str = "svg") -> bytes:

@@ -9,14 +9,13 @@ without a `[tool.logiccheck]` table is passed over), or named with `--config FIL
     [checks]
     "unsafe-pipe" = "error"      # a severity override ...
     "always-asked" = "off"       # ... or turn a check off
-    [data]                       # the data mapping (DESIGN §6)
+    [data]                       # the data mapping (docs/formats.md)
     [quality]                    # quality thresholds
     [clean]                      # cleaning policy
 """
 
 from __future__ import annotations
 
-import difflib
 import importlib
 import sys
 from pathlib import Path
@@ -25,6 +24,7 @@ from typing import Any, Literal
 from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
 from logiccheck.diagnostics import Severity
+from logiccheck.suggest import did_you_mean
 
 if sys.version_info >= (3, 11):
     import tomllib
@@ -78,8 +78,7 @@ TOP_KEYS = ("fail-on", "format", "checks", "data", "quality", "clean")
 
 
 def _did_you_mean(word: str, options: list[str]) -> str:
-    close = difflib.get_close_matches(word, options, n=1, cutoff=0.6)
-    return f"; did you mean `{close[0]}`?" if close else ""
+    return did_you_mean(word, options)
 
 
 def _fmt_loc(loc: tuple[Any, ...], prefix: str) -> str:

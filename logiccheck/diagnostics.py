@@ -6,6 +6,9 @@ from enum import Enum
 
 from pydantic import BaseModel, ConfigDict, Field
 
+# The one severity order: worst first (display order); `Severity.rank` follows it.
+SEVERITY_ORDER = {"error": 0, "warning": 1, "info": 2}
+
 
 class Severity(str, Enum):
     """How serious a record is; ordered error > warning > info."""
@@ -16,7 +19,7 @@ class Severity(str, Enum):
 
     @property
     def rank(self) -> int:
-        return {"error": 3, "warning": 2, "info": 1}[self.value]
+        return len(SEVERITY_ORDER) - SEVERITY_ORDER[self.value]
 
     def at_least(self, other: Severity) -> bool:
         return self.rank >= other.rank
@@ -72,7 +75,7 @@ class Diagnostic(BaseModel):
         return (self.span.file, self.span.line, self.span.column, self.check)
 
     def to_json(self) -> dict[str, object]:
-        """The fixed JSON shape of DESIGN §5, plus optional extras."""
+        """The fixed JSON shape of docs/formats.md, plus optional extras."""
         out: dict[str, object] = {
             "check": self.check,
             "severity": self.severity.value,

@@ -1,6 +1,6 @@
 """An independent, plain-Python router for test oracles: who is asked, given answers.
 
-It follows DESIGN §3 and DEVELOPERS.md directly (Kleene logic with None as unknown,
+It follows the routing semantics (DEVELOPERS.md) and DEVELOPERS.md directly (Kleene logic with None as unknown,
 stops and skips in order, codes compared by label) and shares no code with the solver
 encoding. A respondent is the answers they would give if asked: label (single), number,
 set of labels (multi), True (text), or None (no answer).

@@ -2,12 +2,12 @@
 vectorised evaluator (`validate`).
 
 * `respondent_constraints` fixes one export row in the encoding: every item is answered
-  exactly when it is asked and the export holds a valid value for it (DESIGN §5: an
+  exactly when it is asked and the export holds a valid value for it (docs/formats.md: an
   answer the routing did not allow, or an invalid value, opens nothing later), and its
   value (or chosen options) is the recorded one. The routing variables are then
   determined, so z3's `asked` can be compared with the evaluator's `due`.
 * `row_from_model` turns a solver model back into an export row in the default layout
-  of DESIGN §6, for the other direction.
+  of docs/formats.md, for the other direction.
 """
 
 from __future__ import annotations
@@ -98,7 +98,7 @@ def _model_number(model: z3.ModelRef, var: z3.ArithRef) -> str:
 
 
 def row_from_model(enc: Encoding, model: z3.ModelRef) -> pa.Table:
-    """One export row in the default layout (DESIGN §6) holding the model's answers:
+    """One export row in the default layout (docs/formats.md) holding the model's answers:
     a value wherever the model says asked and answered, blank elsewhere."""
     q = enc.q
     header = simulate(q, 1, seed=0).table.column_names

@@ -38,7 +38,7 @@ def test_lint_matches_the_command_line(tmp_path) -> None:
     assert isinstance(diags, list) and diags
     frame = diags.to_frame()
     assert list(frame.columns) == ["check", "severity", "file", "line", "column", "item", "message"]
-    # The CLI's JSON (DESIGN §5) is the reference: same records, same positions.
+    # The CLI's JSON (docs/formats.md) is the reference: same records, same positions.
     result = CliRunner().invoke(cli, ["lint", str(spec), "--format", "json"])
     cli_rows = [(d["check"], d["severity"], d["line"], d["column"]) for d in json.loads(result.output)["diagnostics"]]
     assert cli_rows == list(frame[["check", "severity", "line", "column"]].itertuples(index=False, name=None))

@@ -17,7 +17,7 @@ DEMOS = ["clinic_visit.qlc", "onboarding.qlc"]
 FAULTY = sorted((SPECS / "faulty").glob("*.qlc"))
 MARK = re.compile(r"#\s*(planted|intended):\s*([a-z, -]+)$")
 
-# Check names of DESIGN §4 that another stage registers; a planted name from this list
+# Check names of the lint rules that another stage registers; a planted name from this list
 # is skipped until its check exists, and is then held to the same standard.
 ROUTING_CHECKS = {
     "unreachable-item", "always-asked", "impossible-comparison", "missing-sensitive",

@@ -105,7 +105,7 @@ def _brute(old_cond: str, new_cond: str) -> tuple[bool, object]:
     return True, (old, new)
 
 
-# Expected verdicts worked by hand from DESIGN §3 (Kleene logic; dk is a real value that
+# Expected verdicts worked by hand from the routing semantics (DEVELOPERS.md) (Kleene logic; dk is a real value that
 # `=`/`!=` see, ordering on it is unknown); the exhaustive router confirms each one.
 @pytest.mark.parametrize(
     ("old_cond", "new_cond", "same"),

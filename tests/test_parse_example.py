@@ -1,4 +1,4 @@
-"""The normative example of DESIGN §3 parses clean and means what its comments say."""
+"""The normative example of the routing semantics (DEVELOPERS.md) parses clean and means what its comments say."""
 
 from __future__ import annotations
 

@@ -8,7 +8,7 @@ analysis finds for "asked" (and "stop fires", "check fails") becomes an export r
 the default layout, and validation must route that row the same way; nothing the
 linter calls unreachable is ever due in simulated data.
 
-Outside reference: DESIGN §3 (semantics) and §5 (`expected` with cascade) are the
+Outside reference: the routing semantics (DEVELOPERS.md) and `expected` with cascade (docs/formats.md) are the
 contract both stages implement; z3 decides the encoding side, numpy the other.
 """
 
@@ -333,7 +333,7 @@ def test_skip_landing_inside_a_section_keeps_its_later_items() -> None:
     # Found by the generated specs: the section is never entered at its start (the
     # skip passes over it whenever `guided` is answered), so lint called the whole
     # section unreachable, yet the skip lands on `rating` inside it and validation
-    # (rightly, DESIGN §3) routes guided walkers there.
+    # (rightly, the routing semantics (DEVELOPERS.md)) routes guided walkers there.
     loaded = load_text(SKIP_INTO_SECTION)
     dead = [d.item for d in run_checks(loaded) if d.check == "unreachable-item"]
     assert dead == ["pace"]

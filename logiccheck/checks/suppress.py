@@ -14,13 +14,13 @@ so the source text is scanned here.
 
 from __future__ import annotations
 
-import difflib
 import re
 from collections.abc import Iterable
 from dataclasses import dataclass, field
 
 from logiccheck.checks.registry import all_checks, default_severity, describe
 from logiccheck.diagnostics import Diagnostic, Span
+from logiccheck.suggest import did_you_mean
 
 MARK = "lc:"
 _TOKEN = re.compile(r'"(?:\\.|[^"\\\n])*"|#[^\n]*')
@@ -111,8 +111,7 @@ def scan(text: str, file: str, known: Iterable[str] | None = None) -> Scan:
         end0 = start + len(comment) + 1
         verb = directive.group("verb")
         if verb not in VERBS:
-            hint = difflib.get_close_matches(verb, VERBS, n=1)
-            tip = f"; did you mean `{hint[0]}`?" if hint else ""
+            tip = did_you_mean(verb, VERBS)
             out.problems.append(
                 _bad(file, number, col0, end0, f"`# {MARK} {verb}` is not a suppression; write `allow` or `allow-file`{tip}")
             )
@@ -135,8 +134,7 @@ def scan(text: str, file: str, known: Iterable[str] | None = None) -> Scan:
             continue
         for check, col in listed:
             if check in UNSUPPRESSIBLE or check not in names:
-                close = difflib.get_close_matches(check, names, n=1, cutoff=0.6)
-                tip = f"; did you mean `{close[0]}`?" if close and check not in UNSUPPRESSIBLE else ""
+                tip = did_you_mean(check, names) if check not in UNSUPPRESSIBLE else ""
                 what = "cannot be suppressed" if check in UNSUPPRESSIBLE else "is not a check"
                 out.problems.append(_bad(file, number, col, col + len(check), f"`{check}` {what}{tip}"))
                 continue

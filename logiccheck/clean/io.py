@@ -1,4 +1,4 @@
-"""Reading an export cell-exactly, and writing every output atomically."""
+"""Writing every `clean` output atomically (exports are read by `data/readers.py`, the one reader)."""
 
 from __future__ import annotations
 
@@ -12,9 +12,9 @@ import pandas as pd
 from logiccheck.atomic import atomic_write
 from logiccheck.clean.sheet import escape, unescape
 from logiccheck.safety.csvfile import read_csv_rows, write_csv_rows
-from logiccheck.safety.streams import spool
 
-FORMATS = {".csv": "csv", ".parquet": "parquet", ".xlsx": "xlsx"}
+FORMATS = {".csv": "csv", ".tsv": "tsv", ".tab": "tsv", ".txt": "csv", ".parquet": "parquet", ".pq": "parquet",
+           ".xlsx": "xlsx", ".jsonl": "jsonl", ".ndjson": "jsonl"}
 
 
 class ExportError(ValueError):
@@ -24,40 +24,8 @@ class ExportError(ValueError):
 def export_format(path: Path) -> str:
     fmt = FORMATS.get(path.suffix.lower())
     if fmt is None:
-        raise ExportError(f"{path}: unsupported export format {path.suffix!r}; use .csv, .parquet or .xlsx")
+        raise ExportError(f"{path}: unsupported export format {path.suffix!r}; use .csv, .tsv, .xlsx, .parquet or .jsonl")
     return fmt
-
-
-def read_export(path: str | Path) -> pd.DataFrame:
-    """Every cell as the exact text of the file ("" = empty), so that cleaning and its
-    reversal are exact. CSV and .xlsx go through the export reader every command uses;
-    Parquet values are turned into text the same way each time."""
-    path = Path(path)
-    fmt = export_format(path)
-    if fmt != "parquet":
-        return _read_text_export(path)
-    try:
-        frame = pd.read_parquet(spool(path))
-        frame = frame.astype(object).where(frame.notna(), "").astype(str)
-    except (ValueError, OSError) as err:
-        raise ExportError(f"{path}: cannot read as Parquet ({str(err).splitlines()[0] if str(err) else type(err).__name__})") from None
-    dup = frame.columns[frame.columns.duplicated()].tolist()
-    if dup:
-        raise ExportError(f"{path}: column {dup[0]!r} appears twice; give every column its own name")
-    return frame
-
-
-def _read_text_export(path: Path) -> pd.DataFrame:
-    from logiccheck.data.readers import DataReadError, open_export
-
-    try:
-        export = open_export(path)
-        parts = [t.to_pandas(types_mapper=None) for t in export.chunks]
-    except DataReadError as err:
-        raise ExportError(str(err)) from None
-    frame = pd.concat(parts, ignore_index=True) if parts else pd.DataFrame(columns=export.columns)
-    frame = frame.astype(object).where(frame.notna(), "")
-    return frame.map(str).reset_index(drop=True) if len(frame) else frame.astype(str)
 
 
 def file_hash(path: str | Path) -> str:
@@ -77,10 +45,11 @@ def sheet_frame(frame: pd.DataFrame, safe: bool) -> pd.DataFrame:
     return escaped
 
 
-def write_csv_table(frame: pd.DataFrame, path: Path, sheet_safe: bool) -> None:
+def write_csv_table(frame: pd.DataFrame, path: Path, sheet_safe: bool, delimiter: str = ",") -> None:
     """A table through the project's one CSV writer (exact read-back, see safety.csvfile)."""
     with open(path, "w", encoding="utf-8", newline="") as fh:
-        write_csv_rows(fh, [str(c) for c in frame.columns], frame.itertuples(index=False, name=None), sheet_safe)
+        write_csv_rows(fh, [str(c) for c in frame.columns], frame.itertuples(index=False, name=None), sheet_safe,
+                       delimiter=delimiter)
 
 
 def _write_xlsx(frame: pd.DataFrame, path: Path) -> None:
@@ -105,18 +74,21 @@ def _text_cell(sheet: Any, text: str) -> Any:
     return cell
 
 
-def write_table_to(frame: pd.DataFrame, path: Path, fmt: str, sheet_safe: bool) -> None:
-    """Write a table straight to `path` (callers make it atomic or part of a set)."""
-    if fmt == "csv":
-        write_csv_table(frame, path, sheet_safe)
+def write_table_to(frame: pd.DataFrame, path: Path, fmt: str, sheet_safe: bool, delimiter: str = ",") -> None:
+    """Write a table straight to `path` (callers make it atomic or part of a set).
+    `frame` holds text cells ("" = blank); CSV and TSV keep the export's delimiter."""
+    if fmt in ("csv", "tsv"):
+        write_csv_table(frame, path, sheet_safe, "\t" if fmt == "tsv" else delimiter)
+    elif fmt == "jsonl":
+        frame.replace("", None).to_json(path, orient="records", lines=True, force_ascii=False)
     elif fmt == "xlsx":
         _write_xlsx(sheet_frame(frame, sheet_safe), path)
     else:
         frame.replace("", None).to_parquet(path, index=False)
 
 
-def write_table(frame: pd.DataFrame, path: Path, fmt: str, sheet_safe: bool) -> None:
-    atomic_write(path, lambda p: write_table_to(frame, p, fmt, sheet_safe))
+def write_table(frame: pd.DataFrame, path: Path, fmt: str, sheet_safe: bool, delimiter: str = ",") -> None:
+    atomic_write(path, lambda p: write_table_to(frame, p, fmt, sheet_safe, delimiter))
 
 
 def write_json_to(obj: Any, path: Path) -> None:

@@ -1,4 +1,4 @@
-"""The whole `clean` job as a function: read, check, apply the policy, write DIR."""
+"""The whole `clean` job as a function: the pipeline's result, the policy, DIR written."""
 
 from __future__ import annotations
 
@@ -7,103 +7,100 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+import numpy as np
 import pandas as pd
 
 from logiccheck import __version__
 from logiccheck.clean.apply import CleanOutcome, apply_policy
-from logiccheck.clean.io import ExportError, export_format, file_hash, read_export, write_json_to, write_table_to
+from logiccheck.clean.io import export_format, file_hash, write_json_to, write_table_to
 from logiccheck.clean.outset import output_names, write_set
 from logiccheck.clean.policy import BIAS_WARNING, CleanPolicy, PolicyError
 from logiccheck.data.mapping import DataMapping
-from logiccheck.data.readers import DataReadError
-from logiccheck.data.validate import validate
+from logiccheck.loader import Loaded
 from logiccheck.model.questionnaire import Questionnaire
-from logiccheck.quality.bridge import require_id, state_from_validation
+from logiccheck.pipeline import PipelineResult, RunOptions, run_pipeline
 from logiccheck.quality.config import SOURCES, QualityConfig
 from logiccheck.quality.rates import OutcomeCounts, dispositions_to_counts, outcome_rates
 from logiccheck.quality.repair import Repairer
-from logiccheck.quality.run import QualityResult, run_quality
+from logiccheck.report.data_csv import write_findings_csv
 
 MAX_HINTS = 200  # repair hints written to the summary (the solver runs once per failing respondent)
 
 
 @dataclass
 class CleanRun:
-    result: QualityResult
+    result: PipelineResult
     outcome: CleanOutcome
     summary: dict[str, Any]
     outputs: list[Path] = field(default_factory=list)
 
 
-def _repair_hints(q: Questionnaire, frame: pd.DataFrame, result: QualityResult, config: QualityConfig) -> list[dict[str, Any]]:
-    failing = sorted({int(r) for m in result.state.checks_failed.values() for r in m.nonzero()[0]})
+def _repair_hints(q: Questionnaire, result: PipelineResult, config: QualityConfig) -> list[dict[str, Any]]:
+    state = result.state
+    assert state is not None
+    failing = sorted({int(r) for m in state.checks_failed.values() for r in m.nonzero()[0]})
     hints: list[dict[str, Any]] = []
-    if not failing:
+    if not failing or result.frame is None:
         return hints
+    frame = _by_spec_name(result)
     repairer = Repairer(q, config.repair.weights, timeout_ms=config.repair.timeout_ms)
     for r in failing[:MAX_HINTS]:
-        hint = repairer.hint(frame.iloc[r].to_dict())
+        hint = repairer.hint({str(k): v for k, v in frame.iloc[r].to_dict().items()})
         if hint is None:
             continue
-        checks = [name for name, m in result.state.checks_failed.items() if m[r]]
-        hints.append({"respondent": result.state.ids[r], "row": r + 1, "fails": checks, "change": hint.items,
+        checks = [name for name, m in state.checks_failed.items() if m[r]]
+        hints.append({"respondent": state.ids[r], "row": r + 1, "fails": checks, "change": hint.items,
                       "example_values": {k: (None if v is None or v != v else v) for k, v in hint.values.items()}, "alternatives": hint.alternatives})
     return hints
 
 
-def _quality(
-    q: Questionnaire, export: Path, mapping: DataMapping | None, config: QualityConfig, sf: pd.DataFrame | None,
-    raw: pd.DataFrame,
-) -> tuple[QualityResult, set[str], pd.DataFrame]:
-    """Route state from the data stage's reader and evaluator (one pass, cells kept), then
-    the quality findings. `mapping` None: the default layout, and the quality checks read
-    the export as it is; with a mapping, the state's columns are the export's own names
-    and the checks read the typed frame (spec names). Also returns the frame they read."""
-    if mapping is None:
-        require_id(raw, "id")
-    try:
-        full = validate(q, export, mapping or DataMapping(), keep_cells=True)
-    except DataReadError as err:
-        raise ExportError(str(err)) from None
-    state = state_from_validation(q, full)
-    if mapping is None:
-        return run_quality(q, raw, config, sf, id_column="id", state=state), {""}, raw
-    for name in state.items:
-        entry = q.symbols[name]
-        if entry.stmt.type.kind == "multi" and mapping.multi.layout == "columns":
-            codes = q.item_codes(entry.stmt)
-            state.columns[name] = [mapping.option_column(name, o.value) for o in (codes.options if codes else [])]
-        elif entry.stmt.type.kind != "note":
-            state.columns[name] = [mapping.column_of(name)]
-    typed = full.frame.reset_index(drop=True).copy() if full.frame is not None else pd.DataFrame({"id": state.ids})
-    for c in (config.speed.duration_column, config.frame.email_column):
-        if c in raw.columns and c not in typed.columns:
-            typed[c] = raw[c].to_numpy()
-    markers = {*mapping.blank_markers(), *(m.strip() for m in mapping.not_shown), *(m.strip() for m in mapping.unanswered)}
-    return run_quality(q, typed, config, sf, id_column="id", state=state), markers, typed
+def _by_spec_name(result: PipelineResult) -> pd.DataFrame:
+    """The export's cells as written, under the spec's names (option columns NAME_N): the
+    repair solver reads the values a respondent gave, invalid ones included."""
+    cells = result.cells()
+    rename: dict[str, str] = {}
+    if result.layout is not None:
+        for name, plan in result.layout.plans.items():
+            if plan.kind == "multi" and len(plan.columns) == len(plan.options):
+                rename.update({c: f"{name}_{v}" for c, v in zip(plan.columns, plan.options, strict=True)})
+            elif len(plan.columns) == 1:
+                rename[plan.columns[0]] = name
+    return cells[[c for c in cells.columns if c in rename]].rename(columns=rename)
+
+
+def _markers(mapping: DataMapping) -> set[str]:
+    """Cell texts that mean no value: left as they are by the cleaner."""
+    return {*mapping.blank_markers(), *(m.strip() for m in mapping.not_shown), *(m.strip() for m in mapping.unanswered)}
 
 
 def clean_export(
-    q: Questionnaire,
+    spec: Questionnaire | Loaded,
     export: Path,
     out: Path,
     policy: CleanPolicy | None = None,
     config: QualityConfig | None = None,
     sample_frame: Path | None = None,
     sample_outcomes: OutcomeCounts | None = None,
-    mapping: DataMapping | None = None,
+    mapping: DataMapping | str | Path | None = None,
+    *,
+    options: RunOptions | None = None,
 ) -> CleanRun:
-    """`mapping` None: the default layout (DESIGN §6). The data stage's reader and
-    evaluator give the route state; with a mapping, cells holding a blank, not-shown or
-    not-answered marker are left as they are."""
+    """Run the pipeline on `export` (the same reader, route state, findings and
+    dispositions as `validate`) and apply `policy` to the very cells it judged.
+    `config` overrides the configuration's [quality] table; `mapping` its [data] table."""
+    export = Path(export)
     policy = policy or CleanPolicy()
-    config = config or QualityConfig()
+    q = spec.questionnaire if isinstance(spec, Loaded) else spec
     fmt = export_format(export)
-    frame = read_export(export)
-    sf = read_export(sample_frame) if sample_frame is not None else None
-    if mapping is not None and config.speed.duration_column == "duration":
-        config = config.model_copy(update={"speed": config.speed.model_copy(update={"duration_column": mapping.duration})})
-    result, markers, by_name = _quality(q, export, mapping, config, sf, frame)
+    opts = options or RunOptions()
+    if mapping is not None:
+        opts.mapping = mapping
+    if config is not None:
+        opts.quality = config
+    if sample_frame is not None:
+        opts.frame = sample_frame
+    result = run_pipeline(q, export, opts)
+    quality = result.quality_config or QualityConfig()
     if policy.keep_dispositions is not None:
         known = {"complete", "partial", "break-off", *(e.name for e in q.entries if e.kind == "stop")}
         unknown = [d for d in policy.keep_dispositions if d not in known]
@@ -112,7 +109,8 @@ def clean_export(
                 f"[clean] keep_dispositions: no disposition is called {unknown[0]!r}; "
                 f"the dispositions are {', '.join(sorted(known))}"
             )
-    outcome = apply_policy(q, frame, result, policy, markers)
+    frame = result.cells()
+    outcome = apply_policy(q, frame, result, policy, _markers(result.mapping or DataMapping()))
     if len(frame) and not len(outcome.cleaned):
         why = ", ".join(f"{check} {n}" for check, n in sorted(outcome.removed.items()))
         raise PolicyError(
@@ -122,45 +120,52 @@ def clean_export(
 
     names = output_names(export)
     stops = [e.name for e in q.entries if e.kind == "stop"]
-    got = result.disposition_counts()
-    # Every disposition listed, zero included, as `validate` reports them.
-    disp_counts = {name: got.pop(name, 0) for name in ("complete", "partial", "break-off", *stops)} | got
+    disp_counts = dict(result.dispositions)
     if sample_outcomes is not None:
         counts, basis = sample_outcomes, "sample file"
     else:
         counts = dispositions_to_counts(disp_counts, stops)
         basis = "export dispositions only (no non-contacts or unknown-eligibility cases known: an upper bound)"
+    by_check: dict[str, int] = {}
+    for (check, _sev), k in sorted(result.counts_by_check().items()):
+        by_check[check] = by_check.get(check, 0) + k
     summary: dict[str, Any] = {
         "tool": "logiccheck",
         "version": __version__,
         "spec": q.file,
-        "input": {"file": str(export), "sha256": file_hash(export), "respondents": len(frame), "format": fmt},
+        "input": {"file": str(export), "sha256": file_hash(export), "respondents": result.respondents, "format": fmt},
         "output": {"respondents": len(outcome.cleaned), "removed": sum(outcome.removed.values()),
                    "cells_blanked": sum(outcome.blanked.values())},
-        "findings": result.counts(),
+        "findings": by_check,
         "dispositions": disp_counts,
         "blanked": outcome.blanked,
         "removed": outcome.removed,
         "policy": policy.model_dump(mode="json"),
-        "thresholds": config.thresholds(),
+        "thresholds": quality.thresholds(),
         "threshold_sources": SOURCES,
         "rates": {"basis": basis, "counts": counts.as_dict(), **outcome_rates(counts)},
-        "repair_hints": _repair_hints(q, by_name, result, config),
+        "repair_hints": _repair_hints(q, result, quality),
         "notes": [*result.notes, BIAS_WARNING],
     }
-    findings = pd.DataFrame(
-        [{"row": f.row + 1, "respondent": f.respondent, "check": f.check, "severity": f.severity.value,
-          "item": f.item or "", "value": "" if f.value is None else str(f.value), "message": f.message}
-         for f in result.findings],
-        columns=["row", "respondent", "check", "severity", "item", "value", "message"],
-    ).astype(str)
+    for analysis in result.analyses.values():
+        summary.update(analysis.summary)
+    cleaned = outcome.cleaned
+    for analysis in result.analyses.values():
+        for name, values in analysis.columns.items():
+            column = np.asarray(values, dtype=object)[outcome.kept]
+            cleaned[name] = ["" if v is None or (isinstance(v, float) and v != v) else str(v) for v in column]
 
-    safe = policy.sheet_safe
-    writers: dict[str, Callable[[Path], None]] = {names[0]: lambda p: write_table_to(outcome.cleaned, p, fmt, safe)}
+    safe, delimiter = policy.sheet_safe, result.delimiter or ","
+    writers: dict[str, Callable[[Path], None]] = {names[0]: lambda p: write_table_to(cleaned, p, fmt, safe, delimiter)}
     if fmt != "csv":
-        writers[names[1]] = lambda p: write_table_to(outcome.cleaned, p, "csv", safe)
+        writers[names[1]] = lambda p: write_table_to(cleaned, p, "csv", safe)
     writers["audit.csv"] = lambda p: write_table_to(outcome.audit.astype(str), p, "csv", safe)
-    writers["findings.csv"] = lambda p: write_table_to(findings, p, "csv", safe)
+
+    def findings_csv(p: Path) -> None:
+        with open(p, "w", encoding="utf-8", newline="") as fh:
+            write_findings_csv(result, fh, sheet_safe=safe)
+
+    writers["findings.csv"] = findings_csv
     writers["summary.json"] = lambda p: write_json_to(summary, p)
     written = write_set(out, writers)
     return CleanRun(result, outcome, summary, written)

@@ -11,8 +11,8 @@ from logiccheck.cli.common import color_option, exit_status, fail_on_option, mak
 from logiccheck.cli.lint import emit, lint_loaded
 from logiccheck.cli.validate import (
     data_options,
-    load_data_mapping,
     load_spec,
+    run_options,
     run_validation,
     spec_note,
     validation_status,
@@ -35,8 +35,9 @@ def check_command(
     map_file: str | None,
     frame: str | None,
     encoding: str | None,
-    show: int,
+    delimiter: str | None,
     chunk_rows: int | None,
+    show: int,
     fmt: str,
     no_solver: bool,
     fail_on: str | None,
@@ -47,8 +48,7 @@ def check_command(
     diagnostics = lint_loaded(loaded, spec, solver=not no_solver)
     sources = SourceCache({spec: loaded.questionnaire.text})
     note = spec_note(loaded)
-    mapping = load_data_mapping(map_file, frame, spec)
-    result = run_validation(loaded, data, mapping, encoding, chunk_rows, color)
+    result = run_validation(loaded, data, run_options(map_file, frame, encoding, delimiter, chunk_rows), color)
     if fmt == "json":
         payload = {
             "lint": {"diagnostics": [d.to_json() for d in diagnostics], "summary": count_by_severity(diagnostics)},

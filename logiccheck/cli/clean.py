@@ -1,4 +1,4 @@
-"""`logiccheck clean SPEC --data EXPORT --out DIR [--policy FILE] [--map FILE] [--frame FILE] [--sample FILE]`"""
+"""`logiccheck clean SPEC --data EXPORT --out DIR [--policy FILE] [--map FILE] [--frame FILE] [--encoding E] [--delimiter D] [--sample FILE]`"""
 
 from __future__ import annotations
 
@@ -8,28 +8,27 @@ from pathlib import Path
 import click
 
 from logiccheck.clean.io import ExportError
-from logiccheck.clean.policy import BIAS_WARNING, PolicyError, configured_policy, load_policy
+from logiccheck.clean.policy import BIAS_WARNING, CleanPolicy, PolicyError, load_policy
 from logiccheck.clean.run import clean_export
-from logiccheck.cli.common import EXIT_OK, color_option, fail, make_console
+from logiccheck.cli.common import EXIT_OK, color_option, export_options, fail, make_console
 from logiccheck.cli.rates import read_outcomes
-from logiccheck.data.mapping import MappingError, load_mapping
+from logiccheck.cli.validate import run_options
+from logiccheck.config import config_for
 from logiccheck.loader import SpecReadError, load_file
-from logiccheck.quality.completeness import RuleError
+from logiccheck.pipeline import INPUT_ERRORS
 from logiccheck.quality.rates import RatesError
-from logiccheck.quality.route import RouteError
 
 
 @click.command("clean")
 @click.argument("spec", type=click.Path(dir_okay=False))
-@click.option("--data", "data", required=True, type=click.Path(dir_okay=False), help="The export (.csv, .parquet, .xlsx).")
-@click.option("--out", "out", required=True, type=click.Path(file_okay=False), help="Folder for the cleaned export, audit.csv and summary.json.")
+@export_options()
+@click.option("--out", "out", required=True, type=click.Path(file_okay=False), help="Folder for the cleaned export, audit.csv, findings.csv and summary.json.")
 @click.option("--policy", "policy_file", type=click.Path(dir_okay=False), help="TOML with [clean] and [quality] tables [default: those of the logiccheck.toml found above the spec].")
-@click.option("--map", "map_file", type=click.Path(dir_okay=False), help="Data mapping (TOML; keys top-level or under [data]).")
-@click.option("--frame", "frame_file", type=click.Path(dir_okay=False), help="Sample frame CSV (column id, optionally email).")
 @click.option("--sample", "sample_file", type=click.Path(dir_okay=False), help="Final outcome of every sampled case, for the outcome rates.")
 @color_option
-def clean_command(spec: str, data: str, out: str, policy_file: str | None, map_file: str | None,
-                  frame_file: str | None, sample_file: str | None, color: str) -> None:
+def clean_command(spec: str, data: str, map_file: str | None, frame: str | None, encoding: str | None,
+                  delimiter: str | None, chunk_rows: int | None, out: str, policy_file: str | None,
+                  sample_file: str | None, color: str) -> None:
     """Apply a cleaning policy to an export; write the cleaned file and an audit trail."""
     try:
         loaded = load_file(spec)
@@ -39,12 +38,18 @@ def clean_command(spec: str, data: str, out: str, policy_file: str | None, map_f
         d = loaded.syntax[0]
         fail(f"{d.file}:{d.line}:{d.column}: {d.message}; run `logiccheck lint {spec}` and fix the spec first")
     try:
-        policy, config = load_policy(policy_file) if policy_file else configured_policy(spec)
+        config = config_for(spec)  # found once: [data], [quality], [clean] and [checks] all come from it
+        if policy_file:
+            policy, quality = load_policy(policy_file)
+        else:
+            model = config.models.get("clean")
+            policy, quality = (model if isinstance(model, CleanPolicy) else CleanPolicy()), None
         outcomes = read_outcomes(Path(sample_file)) if sample_file else None
-        mapping = load_mapping(map_file) if map_file else None
-        run = clean_export(loaded.questionnaire, Path(data), Path(out), policy, config,
-                           Path(frame_file) if frame_file else None, outcomes, mapping)
-    except (PolicyError, ExportError, RuleError, RatesError, RouteError, MappingError) as err:
+        options = run_options(map_file, frame, encoding, delimiter, chunk_rows, config=config, quality=quality)
+        run = clean_export(loaded, Path(data), Path(out), policy, sample_outcomes=outcomes, options=options)
+    except (PolicyError, ExportError, RatesError) as err:
+        fail(str(err))
+    except INPUT_ERRORS as err:
         fail(str(err))
     console = make_console(color)
     s = run.summary

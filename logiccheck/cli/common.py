@@ -46,3 +46,25 @@ def fail(message: str) -> NoReturn:
 def exit_status(records: list[Diagnostic], fail_on: str | None) -> int:
     level = Severity(fail_on or "error")
     return EXIT_FINDINGS if any(r.severity.at_least(level) for r in records) else EXIT_OK
+
+
+def export_options(required: bool = True):  # type: ignore[no-untyped-def]
+    """The options every command that reads an export takes, in one place."""
+    import click as _click
+
+    def wrap(fn):  # type: ignore[no-untyped-def]
+        for option in reversed(
+            [
+                _click.option("--data", "data", required=required, default=None, type=_click.Path(dir_okay=False, allow_dash=True),
+                              help="The export: .csv, .tsv, .xlsx, .parquet or .jsonl ('-': CSV on standard input)."),
+                _click.option("--map", "map_file", type=_click.Path(dir_okay=False), help="Data mapping (TOML; keys top-level or under [data])."),
+                _click.option("--frame", "frame", type=_click.Path(dir_okay=False), help="Sample frame CSV (column id, optionally email)."),
+                _click.option("--encoding", default=None, help="Text encoding of a CSV/TSV/JSON Lines export [default: UTF-8, with or without BOM]."),
+                _click.option("--delimiter", default=None, help="CSV delimiter: ',', ';', tab or '|' [default: detected from the header line]."),
+                _click.option("--chunk-rows", default=None, hidden=True, type=_click.IntRange(1)),
+            ]
+        ):
+            fn = option(fn)
+        return fn
+
+    return wrap

@@ -2,13 +2,12 @@
 
 from __future__ import annotations
 
-import difflib
-
 import click
 from rich.table import Table
 
 from logiccheck.checks.registry import CheckInfo, all_checks
 from logiccheck.cli.common import color_option, fail, make_console
+from logiccheck.suggest import did_you_mean
 
 
 def check_docs(info: CheckInfo) -> str:
@@ -39,7 +38,6 @@ def explain_command(check: str | None, color: str) -> None:
         return
     info = checks.get(check)
     if info is None:
-        close = difflib.get_close_matches(check, list(checks), n=1)
-        hint = f"; did you mean `{close[0]}`?" if close else "; `logiccheck explain` lists them"
+        hint = did_you_mean(check, checks) or "; `logiccheck explain` lists them"
         fail(f"no check is called `{check}`{hint}")
     click.echo(check_docs(info))

@@ -7,14 +7,15 @@ from typing import Any
 
 import click
 
-from logiccheck.cli.common import fail
+from logiccheck.cli.common import export_options, fail
 from logiccheck.loader import Loaded, SpecReadError, load_file
 from logiccheck.report.extra import ReportExtraMissing, require_report_extra
 from logiccheck.report.output import write_atomic
 
 
-def write_html(loaded: Loaded, out: str | None, result: Any = None, mapping: Any = None, *, solver: bool = True) -> str:
-    """Lint, gather the validation result (if any) and write the page; '-' or None: stdout."""
+def write_html(loaded: Loaded, out: str | None, result: Any = None, *, solver: bool = True) -> str:
+    """Lint, gather the pipeline's result (if any) and write the page; '-' or None: stdout.
+    The configuration is the one the pipeline found (else found here, once)."""
     from logiccheck.config import ConfigError, config_for
 
     try:
@@ -24,9 +25,9 @@ def write_html(loaded: Loaded, out: str | None, result: Any = None, mapping: Any
         from logiccheck.report.report_data import ReportData, from_validation, settings_used
 
         q = loaded.questionnaire
-        config = config_for(q.file)  # the same configuration `lint` finds for this spec
+        config = getattr(result, "config", None) or config_for(q.file)
         diagnostics = run_checks(loaded, solver=solver, disable=config.disabled, severity=config.severity)
-        settings = settings_used(config, mapping)
+        settings = settings_used(config, getattr(result, "mapping", None))
         if result is None:
             data = ReportData(q, diagnostics, settings=settings)
         else:
@@ -46,26 +47,21 @@ def write_html(loaded: Loaded, out: str | None, result: Any = None, mapping: Any
 
 @click.command("report")
 @click.argument("spec", type=click.Path(dir_okay=False))
-@click.option("--data", "data", type=click.Path(dir_okay=False), default=None, help="The collected export.")
-@click.option("--map", "map_file", type=click.Path(dir_okay=False), default=None, help="Data mapping (TOML).")
-@click.option("--frame", type=click.Path(dir_okay=False), default=None, help="Sample-frame CSV.")
-@click.option("--encoding", default=None, help="Text encoding of a CSV/TSV/JSON Lines export [default: UTF-8].")
+@export_options(required=False)
 @click.option("--out", required=True, type=click.Path(dir_okay=False), help="The HTML file to write ('-': stdout).")
 @click.option("--no-solver", is_flag=True, help="Skip the routing analysis (static checks only).")
 def report_command(spec: str, data: str | None, map_file: str | None, frame: str | None, encoding: str | None,
-                   out: str, no_solver: bool) -> None:
+                   delimiter: str | None, chunk_rows: int | None, out: str, no_solver: bool) -> None:
     """One self-contained HTML page: summary, per-item chart and table, findings, diagnostics, routing."""
     try:
         require_report_extra()
         loaded = load_file(spec)
     except (SpecReadError, ReportExtraMissing) as err:
         fail(str(err))
-    result = mapping = None
+    result = None
     if data is not None:
-        from logiccheck.cli.validate import load_data_mapping, run_validation
-        from logiccheck.data.readers import DEFAULT_CHUNK_ROWS
+        from logiccheck.cli.validate import run_options, run_validation
 
-        mapping = load_data_mapping(map_file, frame, spec)
-        result = run_validation(loaded, data, mapping, encoding, DEFAULT_CHUNK_ROWS, "auto")
-    path = write_html(loaded, out, result, mapping, solver=not no_solver)
+        result = run_validation(loaded, data, run_options(map_file, frame, encoding, delimiter, chunk_rows))
+    path = write_html(loaded, out, result, solver=not no_solver)
     click.echo(f"logiccheck: wrote {path}", err=True)

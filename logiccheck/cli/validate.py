@@ -2,19 +2,20 @@
 
 from __future__ import annotations
 
+import dataclasses
 import sys
 import time
 from pathlib import Path
+from typing import Any
 
 import click
 from rich.progress import BarColumn, Progress, SpinnerColumn, TextColumn, TimeElapsedColumn
 
-from logiccheck.cli.common import color_option, fail, fail_on_option, make_console
-from logiccheck.data import DataMapping, DataReadError, MappingError, ValidationResult, load_mapping, validate
+from logiccheck.cli.common import color_option, export_options, fail, fail_on_option, make_console
+from logiccheck.data import ValidationResult
 from logiccheck.diagnostics import Severity
 from logiccheck.loader import Loaded, SpecReadError, load_file
-from logiccheck.quality.attach import attach_quality
-from logiccheck.quality.config import QualityConfig
+from logiccheck.pipeline import INPUT_ERRORS, PipelineResult, RunOptions, run_pipeline
 from logiccheck.report.data_csv import items_csv, write_csv_dir
 from logiccheck.report.data_json import validation_json
 from logiccheck.report.data_text import render_validation
@@ -24,74 +25,19 @@ PROGRESS_AFTER = 1.5  # seconds before a progress bar appears
 
 
 def data_options(fn):  # type: ignore[no-untyped-def]
-    """Options `validate` and `check` share."""
-    for option in reversed(
-        [
-            click.option("--data", "data", required=True, type=click.Path(dir_okay=False), help="The export: .csv, .tsv, .xlsx, .parquet or .jsonl."),
-            click.option("--map", "map_file", type=click.Path(dir_okay=False), help="Data mapping (TOML; keys top-level or under [data])."),
-            click.option("--frame", "frame", type=click.Path(dir_okay=False), help="Sample frame CSV (column id, optionally email)."),
-            click.option("--encoding", default=None, help="Text encoding of a CSV/TSV/JSON Lines export [default: UTF-8, with or without BOM]."),
-            click.option("--show", default=5, show_default=True, type=click.IntRange(0), help="Findings shown per check in terminal output."),
-            click.option("--chunk-rows", default=None, hidden=True, type=click.IntRange(1)),
-        ]
-    ):
-        fn = option(fn)
-    return fn
-
-
-def _configured_mapping(spec: str | None) -> DataMapping:
-    from logiccheck.config import ConfigError, config_for
-
-    if spec is None:
-        return DataMapping()
-    try:
-        config = config_for(spec)
-    except ConfigError as err:
-        fail(str(err))
-    model = config.models.get("data")
-    return model if isinstance(model, DataMapping) else DataMapping()
-
-
-def _apply_check_settings(result: ValidationResult, spec: str) -> None:
-    """`[checks]` of the configuration found above the spec applies to findings too."""
-    from logiccheck.config import ConfigError, config_for
-
-    try:
-        config = config_for(spec)
-    except ConfigError as err:
-        fail(str(err))
-    result.apply_check_settings(config.disabled, config.severity)
-
-
-def _configured_quality(loaded: Loaded) -> QualityConfig:
-    from logiccheck.clean.policy import PolicyError, configured_policy
-
-    try:
-        return configured_policy(loaded.questionnaire.file)[1]
-    except PolicyError as err:
-        fail(str(err))
-
-
-def load_data_mapping(map_file: str | None, frame: str | None, spec: str | None = None) -> DataMapping:
-    """--map FILE; else the [data] table of the configuration found above the spec."""
-    try:
-        mapping = load_mapping(map_file) if map_file else _configured_mapping(spec)
-    except MappingError as err:
-        fail(str(err))
-    if frame is not None:
-        if not Path(frame).is_file():
-            fail(f"{frame}: no such sample frame file; give a CSV with an `id` column")
-        mapping = mapping.model_copy(update={"frame": frame})
-    return mapping
+    """Options `validate` and `check` share: the export options, and --show."""
+    fn = click.option("--show", default=5, show_default=True, type=click.IntRange(0), help="Findings shown per check in terminal output.")(fn)
+    return export_options()(fn)
 
 
 def run_validation(
-    loaded: Loaded, data: str, mapping: DataMapping, encoding: str | None, chunk_rows: int | None, color: str
-) -> ValidationResult:
-    """Validate with a progress bar on stderr once the run takes more than a moment."""
+    loaded: Loaded, data: str, options: RunOptions, color: str = "auto"
+) -> PipelineResult:
+    """The pipeline, with a progress bar on stderr once the run takes more than a moment;
+    bad input stops the command with one line (exit 2)."""
     err_console = make_console(color, stderr=True)
     started = time.monotonic()
-    state: dict[str, object] = {}
+    state: dict[str, Any] = {}
 
     def progress(rows: int, _bytes: int) -> None:
         if "bar" not in state:
@@ -110,21 +56,21 @@ def run_validation(
             state["bar"] = bar
             state["task"] = bar.add_task("validate", total=None, name=Path(data).name)
         bar = state["bar"]
-        bar.update(state["task"], completed=rows)  # type: ignore[attr-defined]
+        bar.update(state["task"], completed=rows)
 
     try:
-        # The quality checks read the cells: keep them, so the export is validated once.
-        result = validate(
-            loaded.questionnaire, data, mapping, encoding=encoding, chunk_rows=chunk_rows, keep_cells=True, progress=progress
-        )
-        result = attach_quality(loaded.questionnaire, result, data, mapping, _configured_quality(loaded), encoding=encoding)
-        _apply_check_settings(result, loaded.questionnaire.file)
-        return result
-    except DataReadError as err:
+        return run_pipeline(loaded, data, dataclasses.replace(options, progress=progress))
+    except INPUT_ERRORS as err:
         fail(str(err))
     finally:
         if "bar" in state:
-            state["bar"].stop()  # type: ignore[attr-defined]
+            state["bar"].stop()
+
+
+def run_options(map_file: str | None, frame: str | None, encoding: str | None, delimiter: str | None,
+                chunk_rows: int | None = None, **extra: Any) -> RunOptions:
+    """RunOptions from the shared export options."""
+    return RunOptions(mapping=map_file, frame=frame, encoding=encoding, delimiter=delimiter, chunk_rows=chunk_rows, **extra)
 
 
 def emit_validation(
@@ -191,8 +137,9 @@ def validate_command(
     map_file: str | None,
     frame: str | None,
     encoding: str | None,
-    show: int,
+    delimiter: str | None,
     chunk_rows: int | None,
+    show: int,
     fmt: str,
     out: str | None,
     fail_on: str | None,
@@ -201,14 +148,13 @@ def validate_command(
     """Check an export against the spec's routing: off-route answers, missing, invalid values."""
     loaded = load_spec(spec)
     note = spec_note(loaded)
-    mapping = load_data_mapping(map_file, frame, spec)
-    result = run_validation(loaded, data, mapping, encoding, chunk_rows, color)
+    result = run_validation(loaded, data, run_options(map_file, frame, encoding, delimiter, chunk_rows), color)
     if note:
         click.echo(f"logiccheck: note: {note}", err=True)
     if fmt == "html":
         from logiccheck.cli.report import write_html
 
-        path = write_html(loaded, out, result, mapping)
+        path = write_html(loaded, out, result)
         if out:
             click.echo(f"logiccheck: wrote {path}", err=True)
     else:

@@ -33,8 +33,10 @@ def default_dispositions(share: np.ndarray, stop_names: np.ndarray) -> np.ndarra
 
 def tally(dispositions: np.ndarray, stops: list[str]) -> dict[str, int]:
     """Counts per disposition, every base disposition and stop listed (zero included)."""
-    names, counts = np.unique(dispositions.astype(str), return_counts=True) if len(dispositions) else ([], [])
-    got = dict(zip((str(x) for x in names), (int(c) for c in counts), strict=False))
+    got: dict[str, int] = {}
+    if len(dispositions):
+        names, counts = np.unique(dispositions.astype(str), return_counts=True)
+        got = {str(x): int(c) for x, c in zip(names.tolist(), counts.tolist(), strict=True)}
     out = {name: got.pop(name, 0) for name in (*BASE, *stops)}
     out.update(got)
     return out

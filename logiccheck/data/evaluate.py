@@ -71,7 +71,7 @@ Compiled = Callable[[Env], Any]  # Env -> TV | NumV
 Supplier = Callable[[Entry, np.ndarray], "Cells | None"]
 
 
-# Spec numbers are decimals (DESIGN §3) and the solver reads them exactly; float
+# Spec numbers are decimals (the routing semantics (DEVELOPERS.md)) and the solver reads them exactly; float
 # arithmetic on them leaves rounding error (0.1 + 0.2 is not 0.3 in binary), so values
 # this close, relative to their size, count as equal.
 REL_TOL = 1e-9

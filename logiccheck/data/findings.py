@@ -29,7 +29,7 @@ class Finding(BaseModel):
     message: str
 
     def to_json(self) -> dict[str, object]:
-        """DESIGN §5's fields, plus row and value."""
+        """docs/formats.md's fields, plus row and value."""
         return {
             "check": self.check,
             "severity": self.severity.value,

@@ -1,12 +1,15 @@
-"""How an export's columns map onto the spec (DESIGN §6); the defaults need no file."""
+"""How an export's columns map onto the spec (docs/formats.md); the defaults need no file."""
 
 from __future__ import annotations
 
 import sys
 from pathlib import Path
-from typing import Literal
+from typing import TYPE_CHECKING, Literal
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator
+
+if TYPE_CHECKING:
+    from logiccheck.model.questionnaire import Questionnaire
 
 if sys.version_info >= (3, 11):
     import tomllib
@@ -70,11 +73,28 @@ class DataMapping(BaseModel):
     columns: dict[str, str] = Field(default_factory=dict)
     # Export columns to ignore silently (not reported as unknown-column).
     ignore: list[str] = Field(default_factory=list)
+    # The CSV delimiter: ",", ";", "tab" or "|" (None: detected from the header line).
+    delimiter: str | None = None
+
+    @field_validator("delimiter")
+    @classmethod
+    def _delimiter(cls, v: str | None) -> str | None:
+        if v is None:
+            return v
+        named = {"comma": ",", "semicolon": ";", "tab": "\t", "\\t": "\t", "pipe": "|"}
+        value = named.get(v.lower(), v)
+        if value not in (",", ";", "\t", "|"):
+            raise ValueError('must be ",", ";", "tab" or "|"')
+        return value
 
     def column_of(self, name: str) -> str:
         return self.columns.get(name, name)
 
     def option_column(self, name: str, value: int) -> str:
+        """One option column of a multi item: its own key (`NAME_N`) first, then the item's."""
+        own = self.multi.column.format(name=name, value=value)
+        if own in self.columns and self.multi.layout == "columns":
+            return self.columns[own]
         if name in self.columns and self.multi.layout == "columns":
             base = self.columns[name]
         else:
@@ -130,3 +150,27 @@ def load_mapping(path: str | Path) -> DataMapping:
         # Other tables (policy, quality) may sit beside [data]; only [data] is ours.
         pass
     return mapping_from_dict(table, str(path))
+
+
+def check_mapping(mapping: DataMapping, q: Questionnaire, where: str = "[data.columns]") -> None:
+    """Stop on a mapping that cannot be right: a key naming nothing in the spec, two
+    names mapped to one column, or a name mapped to the respondent id column."""
+    from logiccheck.suggest import did_you_mean
+
+    names: list[str] = []
+    for e in q.items():
+        names.append(e.name)
+        if e.stmt.type.kind == "multi":
+            codes = q.item_codes(e.stmt)
+            names += [mapping.multi.column.format(name=e.name, value=o.value) for o in (codes.options if codes else [])]
+    names += [e.name for e in q.entries if e.kind not in ("stop", "check") and e.name not in names]
+    known = set(names)
+    seen: dict[str, str] = {}
+    for key, column in mapping.columns.items():
+        if key not in known:
+            raise MappingError(f"{where}: `{key}` names no item, grid row or option column of the spec{did_you_mean(key, names)}")
+        if column == mapping.id:
+            raise MappingError(f"{where}: `{key}` is mapped to `{column}`, the respondent id column; map it to its own column")
+        if column in seen:
+            raise MappingError(f"{where}: `{seen[column]}` and `{key}` are both mapped to column `{column}`; each needs its own column")
+        seen[column] = key

@@ -13,11 +13,15 @@ import json
 from collections.abc import Iterator
 from dataclasses import dataclass
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import pyarrow as pa
 import pyarrow.csv as pacsv
 
 from logiccheck.safety.streams import spool
+
+if TYPE_CHECKING:
+    import pandas as pd
 
 DEFAULT_CHUNK_ROWS = None  # chosen from the number of columns: about CHUNK_CELLS cells a chunk
 CHUNK_CELLS = 12_000_000
@@ -44,6 +48,7 @@ class Export:
     columns: list[str]
     chunks: Iterator[pa.Table]
     size: int
+    delimiter: str | None = None  # the delimiter a CSV/TSV export was read with
 
 
 def _suffix(path: Path) -> str:
@@ -56,8 +61,10 @@ def open_export(
     encoding: str | None = None,
     chunk_rows: int | None = DEFAULT_CHUNK_ROWS,
     stream: bool | None = None,
+    delimiter: str | None = None,
 ) -> Export:
-    """Open an export for chunked reading; the format follows the file name's suffix."""
+    """Open an export for chunked reading; the format follows the file name's suffix.
+    A CSV's delimiter is detected from its header line unless `delimiter` is given."""
     shown = str(path)
     path = spool(path)
     if not path.exists():
@@ -68,7 +75,10 @@ def open_export(
     size = path.stat().st_size
     encoding = encoding or bom_encoding(path)
     if suffix in (".csv", ".tsv", ".tab", ".txt"):
-        delimiter = "\t" if suffix in (".tsv", ".tab") else ","
+        if delimiter is None:
+            delimiter = "\t" if suffix in (".tsv", ".tab") else detect_delimiter(path, encoding)
+        elif delimiter not in DELIMITERS:
+            raise DataReadError(f"delimiter {delimiter!r} is not supported; use one of , ; tab |")
         return _open_delimited(path, delimiter, encoding, chunk_rows, size, stream)
     if suffix == ".xlsx":
         return _open_xlsx(path, chunk_rows, size)
@@ -108,6 +118,41 @@ def ragged_line(path: Path, delimiter: str, encoding: str | None, width: int) ->
     except (OSError, UnicodeDecodeError, csv.Error):
         return None
     return None
+
+
+DELIMITERS = (",", ";", "\t", "|")
+DELIMITER_NAMES = {",": "comma", ";": "semicolon", "\t": "tab", "|": "vertical bar"}
+
+
+def parse_delimiter(text: str) -> str:
+    """`--delimiter` / `[data] delimiter` as given (",", ";", "tab", "\\t", "|")."""
+    named = {"comma": ",", "semicolon": ";", "tab": "\t", "\\t": "\t", "pipe": "|"}
+    value = named.get(text.lower(), text)
+    if value not in DELIMITERS:
+        raise DataReadError(f"delimiter {text!r} is not supported; use one of , ; tab |")
+    return value
+
+
+def detect_delimiter(path: Path, encoding: str | None) -> str:
+    """The delimiter of a CSV export, from its header line: the candidate that splits it
+    into the most fields outside quotes (a comma on a tie, and for a one-column file)."""
+    enc = encoding or "utf-8-sig"
+    try:
+        with path.open("r", encoding=enc, newline="") as fh:
+            line = fh.readline()
+    except UnicodeDecodeError:
+        raise _not_utf8(path, encoding) from None
+    except LookupError:
+        raise DataReadError(f"{path}: unknown encoding `{encoding}`; use a name such as utf-8, cp1252 or latin-1") from None
+    counts = {d: 0 for d in DELIMITERS}
+    quoted = False
+    for ch in line:
+        if ch == '"':
+            quoted = not quoted
+        elif not quoted and ch in counts:
+            counts[ch] += 1
+    best = max(DELIMITERS, key=lambda d: (counts[d], d == ","))
+    return best if counts[best] else ","
 
 
 def first_bad_byte(path: Path, encoding: str = "utf-8") -> int | None:
@@ -207,7 +252,7 @@ def _open_delimited(
                 ) from None
             raise _csv_error(path, str(err), encoding) from None
 
-    return Export(path, names, chunks(), size)
+    return Export(path, names, chunks(), size, delimiter)
 
 
 def _csv_error(path: Path, text: str, encoding: str | None) -> DataReadError:
@@ -394,3 +439,37 @@ def _json_cell(value: object) -> str | None:
     if isinstance(value, (list, dict)):
         return json.dumps(value)
     return _cell_text(value)
+
+
+def column_texts(table: pa.Table, column: str) -> list[str | None]:
+    """A column's cells as the export wrote them (text; None where blank)."""
+    arr = table.column(column)
+    if pa.types.is_dictionary(arr.type) or pa.types.is_string(arr.type) or pa.types.is_large_string(arr.type):
+        return [None if v is None else str(v) for v in arr.to_pylist()]
+    return [_cell_text(v) for v in arr.to_pylist()]
+
+
+def read_table(
+    path: str | Path, *, encoding: str | None = None, delimiter: str | None = None
+) -> tuple[pa.Table, Export]:
+    """The whole export as one table (the one reader; chunks joined)."""
+    export = open_export(path, encoding=encoding, delimiter=delimiter)
+    parts = list(export.chunks)
+    table = pa.concat_tables(parts) if parts else pa.table({c: pa.array([], pa.string()) for c in export.columns})
+    return table, export
+
+
+def read_cells(path: str | Path, *, encoding: str | None = None, delimiter: str | None = None) -> pd.DataFrame:
+    """Every cell as text ("" where blank), columns in file order: what `clean` writes from."""
+    table, _ = read_table(path, encoding=encoding, delimiter=delimiter)
+    return cells_frame(table)
+
+
+def cells_frame(table: pa.Table) -> pd.DataFrame:
+    import pandas as pd
+
+    return pd.DataFrame(
+        {c: ["" if v is None else v for v in column_texts(table, c)] for c in table.column_names},
+        columns=list(table.column_names),
+        dtype=object,
+    ).astype(str)

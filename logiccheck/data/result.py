@@ -39,6 +39,8 @@ class ValidationResult:
     frame: pd.DataFrame | None = None  # the typed frame (values where valid, NaN otherwise)
     missing_columns: list[tuple[str, str]] = field(default_factory=list)
     unknown_columns: list[str] = field(default_factory=list)
+    # Items whose routing reads an item with a missing column → those items: not judged.
+    unjudged: dict[str, list[str]] = field(default_factory=dict)
     notes: list[str] = field(default_factory=list)
     source: str | None = None
     _findings: list[Finding] | None = field(default=None, repr=False)
@@ -88,7 +90,7 @@ class ValidationResult:
 
     def item_states(self, item: str) -> pd.DataFrame:
         """Per respondent for one item: due, has_value, valid (needs keep_cells)."""
-        if self.due is None:
+        if self.due is None or self.has_value is None or self.valid is None:
             raise ValueError("cell arrays were not kept; validate with keep_cells=True")
         j = self.items.index(item)
         return pd.DataFrame(
@@ -96,18 +98,11 @@ class ValidationResult:
         )
 
     def to_json(self) -> dict[str, Any]:
-        """DESIGN §5: respondents, items, findings, dispositions."""
+        """docs/formats.md: respondents, items, findings, dispositions."""
+        counts = ("expected", "answered", "out_of_path", "missing_on_path", "invalid")
         items = [
-            {
-                "item": r.item,
-                "expected": int(r.expected),
-                "answered": int(r.answered),
-                "out_of_path": int(r.out_of_path),
-                "missing_on_path": int(r.missing_on_path),
-                "invalid": int(r.invalid),
-                "over_expected": bool(r.over_expected),
-            }
-            for r in self.table.itertuples(index=False)
+            {"item": r["item"], **{k: int(r[k]) for k in counts}, "over_expected": bool(r["over_expected"])}
+            for r in self.table[TABLE_COLUMNS].to_dict(orient="records")
         ]
         return {
             "respondents": int(self.respondents),

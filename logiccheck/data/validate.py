@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import difflib
 import time
 from collections.abc import Callable, Iterable
 from pathlib import Path
@@ -12,9 +11,10 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.compute as pc
 
+from logiccheck.checks.registry import CheckInfo, describe
 from logiccheck.data import causes
 from logiccheck.data.dispositions import answered_share, default_dispositions, tally
-from logiccheck.data.evaluate import ChunkState, Evaluator
+from logiccheck.data.evaluate import ChunkState, Evaluator, reads_of
 from logiccheck.data.findings import FindingBlock
 from logiccheck.data.frame import (
     REASON_TEXT,
@@ -32,14 +32,95 @@ from logiccheck.data.readers import DEFAULT_CHUNK_ROWS, open_export, prefetch, r
 from logiccheck.data.result import TABLE_COLUMNS, ValidationResult
 from logiccheck.diagnostics import Severity
 from logiccheck.model.questionnaire import Questionnaire
+from logiccheck.suggest import closest, did_you_mean
 
 Progress = Callable[[int, int], None]  # (rows done, bytes done)
 
+# The data stage's checks: declared here, beside the evaluator pass that finds them (one
+# vectorised pass finds them all, so they are `describe`d rather than `data_check`s). The
+# code below names them only through these objects.
+MISSING_COLUMN = describe(
+    "missing-column",
+    severity="error",
+    stage="data",
+    summary="An item, grid row, option or the id has no column in the export.",
+    what="A column the default layout (or the mapping) expects is absent: `NAME` for single, number and text items and sample variables, `NAME_N` for each option of a multi item, and the respondent id column.",
+    why="Without the column every answer to that item is lost; the usual cause is a renamed variable in the fielding tool or a trimmed export.",
+    bad="spec: trips: number 1..2000 \"Trips?\"\nexport header: id,age,used,trip_count",
+    good="export header: id,age,used,trips\n(or map it: [data.columns] trips = \"trip_count\")",
+)
+UNKNOWN_COLUMN = describe(
+    "unknown-column",
+    severity="info",
+    stage="data",
+    summary="An export column matches nothing in the spec.",
+    what="A column that is no item, grid row, option column, sample variable, id or duration column.",
+    why="It is often an item added in the fielding tool but not in the spec, or a misspelt name; either way its answers are not checked.",
+    bad="export header: id,age,used,age_group",
+    good="add `age_group` to the spec, rename the column, or list it under `ignore` in the mapping",
+)
+INVALID_VALUE = describe(
+    "invalid-value",
+    severity="error",
+    stage="data",
+    summary="A cell holds a value the item cannot have.",
+    what="Not a declared code, outside the number range, not a number (\"12a\"), not a whole number for a `number` item, a non-response code on a `strict` item, or a multi option cell other than 1, 0 or blank.",
+    why="Impossible values distort every table they enter; an invalid value also opens no later item (cascade), so follow-ups behind it are judged as not due.",
+    bad="used: single yesno \"Used a city bike?\"\nexport: used = 3",
+    good="export: used = 1 (yes) or 2 (no)",
+)
+OUT_OF_PATH = describe(
+    "out-of-path",
+    severity="error",
+    stage="data",
+    summary="An answer where the routing says the item is not asked.",
+    what="A value in the export for a respondent the routing does not route to the item, with the root cause: which condition was false for them, and what the items it reads held.",
+    why="Answers off the route come from platform glitches, the back button, paper forms or merged files; analysed as they are, they inflate the item's base.",
+    bad="range_ok: single agree5 \"...\" when ebike = yes\nexport: ebike = 2 (no), range_ok = 4",
+    good="export: ebike = 2 (no), range_ok blank",
+)
+MISSING_ON_PATH = describe(
+    "missing-on-path",
+    severity="info",
+    stage="data",
+    summary="The routing asks the item, but the export has no answer.",
+    what="A respondent due the item (every condition true, no stop or skip) with a blank cell. Info by default, since respondents may leave items blank; an error for `required` items, which the form should have forced.",
+    why="Item non-response where an answer was due; for a required item it means the form or the export dropped answers.",
+    bad="age: number 0..120 \"How old are you?\" strict required\nexport: age blank",
+    good="export: age = 34",
+)
+SHOWN_MISMATCH = describe(
+    "shown-mismatch",
+    severity="warning",
+    stage="data",
+    summary="The export's shown / not-shown marker disagrees with the routing.",
+    what="With `not_shown` or `unanswered` markers in the mapping: a cell marked not shown where the routing shows the item, or marked shown-but-unanswered where it does not.",
+    why="The fielding tool routed differently from the spec: either the spec or the programmed questionnaire is wrong.",
+    bad="mapping: not_shown = [\"-7\"]\nexport: used = 1 (yes), freq = -7",
+    good="export: used = 1 (yes), freq = 2",
+)
+AFTER_STOP = describe(
+    "after-stop",
+    severity="error",
+    stage="data",
+    summary="Answers recorded after a stop ended the interview.",
+    what="A value for an item that comes after a `stop` that fired for this respondent.",
+    why="A screened-out respondent should have no further answers; their presence means the screen-out did not work or files were merged.",
+    bad="stop underage \"...\" when age < 16\nexport: age = 14, used = 1",
+    good="export: age = 14, used blank",
+)
+CHECK_FAILED = describe(
+    "check-failed",
+    severity="error",
+    stage="data",
+    summary="An edit rule (`check`) does not hold for a respondent.",
+    what="A `check` that applies to the respondent (reached, `when` true) whose `require` is false; `soft` checks give warnings. A `require` that is unknown because an input is blank is not a failure.",
+    why="Edit rules state what consistent answers look like; failures point to misreporting or data-entry errors.",
+    bad="check daily_needs_trips \"...\" when freq = daily require trips >= 100 soft\nexport: freq = 1 (daily), trips = 12",
+    good="export: freq = 1 (daily), trips = 240",
+)
 
-def _sev(name: str) -> Severity:
-    from logiccheck.checks.registry import default_severity
-
-    return default_severity(name)
+OFF_ROUTE = {"stop": AFTER_STOP}  # the guard that kept an item off the route → its check
 
 
 def validate(
@@ -51,6 +132,7 @@ def validate(
     chunk_rows: int | None = DEFAULT_CHUNK_ROWS,
     keep_cells: bool = True,
     stream: bool | None = None,
+    delimiter: str | None = None,
     progress: Progress | None = None,
     timings: dict[str, float] | None = None,
 ) -> ValidationResult:
@@ -62,10 +144,10 @@ def validate(
     """
     mapping = mapping or DataMapping()
     if isinstance(source, (str, Path)):
-        export = open_export(source, encoding=encoding, chunk_rows=chunk_rows, stream=stream)
+        export = open_export(source, encoding=encoding, chunk_rows=chunk_rows, stream=stream, delimiter=delimiter)
         header, chunks, name = export.columns, prefetch(export.chunks), str(export.path)
     else:
-        table = source if isinstance(source, pa.Table) else _table_from_frame(source)
+        table = source if isinstance(source, pa.Table) else table_from_frame(source)
         header = list(table.column_names)
         chunk_rows = chunk_rows or rows_for(len(header))
         chunks = (table.slice(s, chunk_rows) for s in range(0, max(table.num_rows, 1), chunk_rows))
@@ -77,7 +159,7 @@ def validate_frame(q: Questionnaire, frame: pd.DataFrame, mapping: DataMapping |
     return validate(q, frame, mapping)
 
 
-def _table_from_frame(frame: pd.DataFrame) -> pa.Table:
+def table_from_frame(frame: pd.DataFrame) -> pa.Table:
     """A DataFrame as text columns (numbers keep their own type), blanks as null."""
     cols = {}
     for c in frame.columns:
@@ -101,6 +183,33 @@ class Validator:
         self.gates = np.array([q.symbols[i].stmt.flags.gate for i in self.items], dtype=bool)
         self.stop_names = [e.name for e in q.entries if e.kind == "stop"]
         self.stop_index = {e.index: e.name for e in q.entries if e.kind == "stop"}
+        self.unjudged = self._unjudged()
+
+    def _unjudged(self) -> dict[str, list[str]]:
+        """Items whose routing reads, directly or through other items and derived values,
+        an item with a missing column → the missing items. Their conditions are unknown,
+        so their answers are judged neither off-route nor missing (reported once, as
+        `missing-column`)."""
+        tainted: dict[str, set[str]] = {name: {name} for name, _ in self.layout.missing if name != "id"}
+        out: dict[str, list[str]] = {}
+        if not tainted:
+            return out
+        for e in self.q.entries:
+            if e.kind == "let":
+                exprs = [e.own] if e.own is not None else []
+            elif e.kind == "item":
+                exprs = [g.expr for g in self.evaluator.guards_of(e) if g.expr is not None]
+            else:
+                continue
+            roots: set[str] = set()
+            for expr in exprs:
+                for _how, name in reads_of(self.q, expr):
+                    roots |= tainted.get(name, set())
+            if roots:
+                tainted[e.name] = tainted.get(e.name, set()) | roots
+                if e.kind == "item" and e.name in self.layout.plans and not self.layout.plans[e.name].missing:
+                    out[e.name] = sorted(roots)
+        return out
 
     def run(
         self,
@@ -147,7 +256,10 @@ class Validator:
                 n_d = int(np.count_nonzero(d))
                 n_p = int(np.count_nonzero(c.present))
                 n_valid = int(np.count_nonzero(c.valid))
-                counts[j] += (n_d, n_p, n_p - n_on, n_d - n_on, n_p - n_valid)
+                if item in self.unjudged:
+                    counts[j] += (n_d, n_p, 0, 0, n_p - n_valid)  # routing unknown: not judged
+                else:
+                    counts[j] += (n_d, n_p, n_p - n_on, n_d - n_on, n_p - n_valid)
                 answered += on
                 n_due += d
                 if self.gates[j]:
@@ -224,6 +336,7 @@ class Validator:
             measures=measure_frame,
             missing_columns=list(layout.missing),
             unknown_columns=list(layout.unknown),
+            unjudged=dict(self.unjudged),
             source=source,
         )
         if self.keep:
@@ -263,23 +376,31 @@ class Validator:
         for name, col in self.layout.missing:
             if name == "id":
                 msg = f"the export has no respondent id column `{col}`; rows are numbered instead (set `id` in the mapping)"
-                out.append(FindingBlock("missing-column", _sev("missing-column"), None, msg, empty))
+                out.append(FindingBlock(MISSING_COLUMN.name, MISSING_COLUMN.severity, None, msg, empty))
                 continue
             hint = ""
             plan = self.layout.plans.get(name)
             if plan is not None and plan.kind == "multi" and name in unknown and self.mapping.multi.layout == "columns":
                 hint = f" (the export has one column `{name}`: if it lists the chosen codes, set `layout = \"delimited\"` under [data.multi])"
             else:
-                close = difflib.get_close_matches(col, self.layout.unknown, n=1, cutoff=0.75)
+                key, cutoff = name, 0.75
+                if plan is not None and plan.kind == "multi" and col in plan.columns:
+                    # One option column: its own key, so the other options keep theirs; option
+                    # columns are often shortened, so a looser match is still worth naming.
+                    key = self.mapping.multi.column.format(name=name, value=plan.options[plan.columns.index(col)])
+                    cutoff = 0.6
+                close = closest(col, self.layout.unknown, cutoff=cutoff)
                 if close:
-                    hint = f" (is `{close[0]}` the same? map it under [data.columns]: {name} = \"{close[0]}\")"
-            msg = f"the export has no column `{col}` for `{name}`; every answer to it counts as missing{hint}"
-            out.append(FindingBlock("missing-column", _sev("missing-column"), name, msg, empty))
+                    hint = f" (is `{close}` the same? map it under [data.columns]: {key} = \"{close}\")"
+            after = sorted(i for i, roots in self.unjudged.items() if name in roots)
+            shown = ", ".join(f"`{i}`" for i in after[:8]) + (f" and {len(after) - 8} more" if len(after) > 8 else "")
+            depends = f"; not judged for routing, as their conditions read it: {shown}" if after else ""
+            msg = f"the export has no column `{col}` for `{name}`; every answer to it counts as missing{depends}{hint}"
+            out.append(FindingBlock(MISSING_COLUMN.name, MISSING_COLUMN.severity, name, msg, empty))
         for col in self.layout.unknown:
-            close = difflib.get_close_matches(col, missing_cols, n=1, cutoff=0.75)
-            hint = f"; did you mean `{close[0]}`?" if close else ""
+            hint = did_you_mean(col, missing_cols, cutoff=0.75)
             msg = f"column `{col}` is not in the spec (no item, grid row or sample variable of that name); it is ignored{hint}"
-            out.append(FindingBlock("unknown-column", _sev("unknown-column"), None, msg, empty))
+            out.append(FindingBlock(UNKNOWN_COLUMN.name, UNKNOWN_COLUMN.severity, None, msg, empty))
         return out
 
     def _item_blocks(
@@ -303,8 +424,9 @@ class Validator:
                 rows = np.flatnonzero(bad & (c.reason == reason))
                 vals = cell_texts(table, plan, rows, self.mapping)
                 msg = f"`{item}` = {{value}} {REASON_TEXT[reason]}{self._allowed(plan)}"
-                out.append(FindingBlock("invalid-value", _sev("invalid-value"), item, msg, rows + offset, ids[rows], vals))
-        blocked = state.blocked.get(item)
+                out.append(FindingBlock(INVALID_VALUE.name, INVALID_VALUE.severity, item, msg, rows + offset, ids[rows], vals))
+        judged = item not in self.unjudged
+        blocked = state.blocked.get(item) if judged else None
         if blocked is not None:
             guards = self.evaluator.guards_of(plan.entry)
             key = np.column_stack([blocked.reason.astype(np.float64), blocked.keys])
@@ -315,34 +437,35 @@ class Validator:
                 sel = np.flatnonzero(inverse == gi)
                 g = guards[int(group[0])] if int(group[0]) >= 0 else None
                 rows = blocked.rows[sel]
+                info: CheckInfo
                 if g is None:
                     msg = f"`{item}` answered, but the routing does not ask it here"
-                    check = "out-of-path"
+                    info = OUT_OF_PATH
                 else:
                     msg = causes.off_route_message(q, item, g, group[1:])
-                    check = "after-stop" if g.kind == "stop" else "out-of-path"
+                    info = OFF_ROUTE.get(g.kind, OUT_OF_PATH)
                 out.append(
-                    FindingBlock(check, _sev(check), item, msg, rows + offset, ids[rows], [vals_all[i] for i in sel])
+                    FindingBlock(info.name, info.severity, item, msg, rows + offset, ids[rows], [vals_all[i] for i in sel])
                 )
-        if plan.kind != "note" and not plan.missing and any_missing:
+        if plan.kind != "note" and not plan.missing and any_missing and judged:
             missing = due & ~c.present
             if missing.any():
                 rows = np.flatnonzero(missing)
                 required = plan.entry.kind == "item" and plan.entry.stmt.flags.required
-                sev = Severity.error if required else _sev("missing-on-path")
+                sev = Severity.error if required else MISSING_ON_PATH.severity
                 extra = " (the item is `required`)" if required else ""
                 msg = f"`{item}` was due but has no answer{extra}"
-                out.append(FindingBlock("missing-on-path", sev, item, msg, rows + offset, ids[rows], None))
+                out.append(FindingBlock(MISSING_ON_PATH.name, sev, item, msg, rows + offset, ids[rows], None))
         if c.not_shown is not None:
             rows = np.flatnonzero(c.not_shown & due)
             if rows.size:
                 msg = f"`{item}` is marked not shown, but the routing shows it to this respondent"
-                out.append(FindingBlock("shown-mismatch", _sev("shown-mismatch"), item, msg, rows + offset, ids[rows], None))
+                out.append(FindingBlock(SHOWN_MISMATCH.name, SHOWN_MISMATCH.severity, item, msg, rows + offset, ids[rows], None))
         if c.unanswered is not None:
             rows = np.flatnonzero(c.unanswered & ~due)
             if rows.size:
                 msg = f"`{item}` is marked shown, but the routing does not show it to this respondent"
-                out.append(FindingBlock("shown-mismatch", _sev("shown-mismatch"), item, msg, rows + offset, ids[rows], None))
+                out.append(FindingBlock(SHOWN_MISMATCH.name, SHOWN_MISMATCH.severity, item, msg, rows + offset, ids[rows], None))
         return out
 
     def _allowed(self, plan: NamePlan) -> str:
@@ -371,7 +494,7 @@ class Validator:
             sev = Severity.warning if e.stmt.soft else Severity.error
             req = causes.source_of(self.q, e.require) if e.require is not None else ""
             msg = f"check `{e.name}` failed: {e.stmt.text} (requires `{req}`, line {e.span.line})"
-            out.append(FindingBlock("check-failed", sev, e.name, msg, rows + offset, ids[rows], None))
+            out.append(FindingBlock(CHECK_FAILED.name, sev, e.name, msg, rows + offset, ids[rows], None))
         return out
 
     def _typed(self, cells: dict[str, Cells], ids: np.ndarray, table: pa.Table) -> pd.DataFrame:

@@ -1,4 +1,4 @@
-"""The questionnaire as z3 formulas, following DESIGN §3 and DEVELOPERS.md exactly.
+"""The questionnaire as z3 formulas, following the routing semantics (DEVELOPERS.md) and DEVELOPERS.md exactly.
 
 One respondent is one assignment of the variables below:
 
@@ -29,7 +29,7 @@ from logiccheck.model import nodes as n
 from logiccheck.model.questionnaire import Entry, Questionnaire
 
 Reading = Literal["ours", "blank", "code"]
-"""`ours` is DESIGN §3. `blank`: a missing value is a value unequal to every code, so a
+"""`ours` is the routing semantics (DEVELOPERS.md). `blank`: a missing value is a value unequal to every code, so a
 comparison that ours calls unknown is false (`!=`: true) and logic is two-valued.
 `code`: a non-response code is its plain number (ordering and arithmetic read it)."""
 

@@ -1,17 +1,14 @@
-"""Between the data stage and the quality stage: a route state from a `ValidationResult`,
-and quality findings as data-stage `Finding` records (one list for every reporter)."""
+"""Between the data stage and the quality stage: a route state from a `ValidationResult`."""
 
 from __future__ import annotations
 
 import numpy as np
 import pandas as pd
 
-from logiccheck.data.findings import Finding as DataFinding
 from logiccheck.data.mapping import DataMapping
 from logiccheck.data.result import ValidationResult
-from logiccheck.data.validate import validate
+from logiccheck.data.validate import CHECK_FAILED, validate
 from logiccheck.model.questionnaire import Questionnaire
-from logiccheck.quality.findings import Finding
 from logiccheck.quality.route import RouteError, RouteState, item_columns
 
 
@@ -31,7 +28,7 @@ def state_from_validation(q: Questionnaire, result: ValidationResult) -> RouteSt
     failed = {e.name: np.zeros(n, bool) for e in q.entries if e.kind == "check"}
     # From the finding blocks (0-based rows): no need to materialise every finding.
     for b in result.blocks:
-        if b.check == "check-failed" and b.item in failed and b.rows.size:
+        if b.check == CHECK_FAILED.name and b.item in failed and b.rows.size:
             failed[b.item][b.rows] = True
     columns = {name: item_columns(q, q.symbols[name]) for name in result.items}
     return RouteState([str(i) for i in result.ids], list(result.items), result.due, result.has_value, result.valid,
@@ -45,15 +42,6 @@ def require_id(frame: pd.DataFrame, id_column: str) -> None:
 
 def route_state(q: Questionnaire, frame: pd.DataFrame, id_column: str = "id") -> RouteState:
     """Due, answered, valid and non-response masks for every respondent × item of an
-    export in the default layout (DESIGN §6), by the data stage's evaluator."""
+    export in the default layout (docs/formats.md), by the data stage's evaluator."""
     require_id(frame, id_column)
     return state_from_validation(q, validate(q, frame, DataMapping(id=id_column), keep_cells=True))
-
-
-def as_data_findings(findings: list[Finding]) -> list[DataFinding]:
-    """Quality findings in the data stage's record shape (1-based rows, values as text)."""
-    return [
-        DataFinding(check=f.check, severity=f.severity, respondent=f.respondent, row=f.row + 1, item=f.item,
-                    value=None if f.value is None else str(f.value), message=f.message)
-        for f in findings
-    ]

@@ -7,7 +7,6 @@ measures and parsed with the project's grammar.
 
 from __future__ import annotations
 
-import difflib
 import re
 from dataclasses import dataclass
 from typing import Any
@@ -21,6 +20,7 @@ from logiccheck.model.build import build_spec
 from logiccheck.model.questionnaire import Questionnaire
 from logiccheck.quality.config import CompletenessConfig
 from logiccheck.quality.route import RouteState
+from logiccheck.suggest import did_you_mean
 from logiccheck.syntax import parse_text
 
 MEASURES = ("answered_share", "answered_count", "due_count", "weighted_share", "gates_answered", "gates_due")
@@ -99,8 +99,7 @@ def parse_rule(text: str, q: Questionnaire, where: str = "completeness rule") ->
     known = set(MEASURES) | {f"reached__{r}" for r in reached}
     for node in n.walk(expr):
         if isinstance(node, n.Ref) and node.name not in known:
-            hint = difflib.get_close_matches(node.name, [*MEASURES, *q.symbols], n=1)
-            extra = f"; did you mean `{hint[0]}`?" if hint else ""
+            extra = did_you_mean(node.name, [*MEASURES, *q.symbols])
             raise RuleError(f"{where}: unknown measure `{node.name}` in `{text.strip()}`{extra}")
         if isinstance(node, n.Func) and node.name not in q.symbols:
             raise RuleError(f"{where}: `{node.func}({node.name})` names no item")
@@ -113,7 +112,7 @@ def parse_rule(text: str, q: Questionnaire, where: str = "completeness rule") ->
 def reached_mask(state: RouteState, item: str) -> np.ndarray:
     """Got at least as far as `item`: a value recorded on it or on any later item."""
     j = state.col(item)
-    return state.has_value[:, j:].any(axis=1)
+    return np.asarray(state.has_value[:, j:].any(axis=1), dtype=bool)
 
 
 def eval_rule(rule: Rule, q: Questionnaire, state: RouteState, table: pd.DataFrame, config: CompletenessConfig) -> np.ndarray:

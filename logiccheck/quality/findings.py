@@ -1,32 +1,19 @@
-"""The record a quality check produces for one respondent (and item, where there is one).
-
-Same fields as the data stage's findings, so one list feeds every reporter.
-"""
+"""Quality findings are the data stage's `Finding` records (1-based rows, values as text):
+one record type for every check and reporter. `finding` builds one from a 0-based row."""
 
 from __future__ import annotations
 
-from dataclasses import asdict, dataclass
 from typing import Any
 
-from logiccheck.checks.registry import default_severity
-from logiccheck.diagnostics import Severity
+from logiccheck.checks.registry import check_info
+from logiccheck.data.findings import Finding
 
-
-@dataclass(frozen=True)
-class Finding:
-    check: str
-    severity: Severity
-    respondent: str
-    row: int  # 0-based row of the export (header not counted)
-    item: str | None
-    value: Any
-    message: str
-
-    def to_json(self) -> dict[str, Any]:
-        out = asdict(self)
-        out["severity"] = self.severity.value
-        return out
+__all__ = ["Finding", "finding"]
 
 
 def finding(check: str, respondent: object, row: int, message: str, item: str | None = None, value: Any = None) -> Finding:
-    return Finding(check, default_severity(check), str(respondent), int(row), item, value, message)
+    """A finding of the declared check `check` for 0-based data row `row`."""
+    info = check_info(check)
+    text = None if value is None else (str(value) if not isinstance(value, float) else f"{value:g}")
+    return Finding(check=info.name, severity=info.severity, respondent=str(respondent), row=int(row) + 1, item=item,
+                   value=text, message=message)

@@ -34,7 +34,7 @@ class RouteState:
 
 
 def item_columns(q: Questionnaire, entry: Entry) -> list[str]:
-    """An item's export columns in the default layout (DESIGN §6)."""
+    """An item's export columns in the default layout (docs/formats.md)."""
     stmt = entry.stmt
     if stmt.type.kind == "multi":
         codes = q.item_codes(stmt)

@@ -73,7 +73,9 @@ def run_quality(
     sample_frame: pd.DataFrame | None = None,
     id_column: str = "id",
     state: RouteState | None = None,
+    dispositions: pd.Series | None = None,
 ) -> QualityResult:
+    """`dispositions`: computed once by the pipeline (else here, by the configured rule)."""
     config = config or QualityConfig()
     state = state or route_state(q, frame, id_column)
     ids = state.ids
@@ -102,7 +104,7 @@ def run_quality(
             answers, asked if dc.near_basis == "asked" else None, basis=dc.near_basis,
             min_items=min(dc.near_min_items, answers.shape[1]), chunk_size=dc.chunk_size,
         )
-        found += duplicates.near_duplicates(ids, match, dc.near_threshold, exclude={f.row for f in exact})
+        found += duplicates.near_duplicates(ids, match, dc.near_threshold, exclude={(f.row or 1) - 1 for f in exact})
     for grid in q.grids:
         found += careless.grid_findings(ids, grid, grid_values(q, state, frame, grid), config.careless)
     if config.speed.duration_column in frame.columns:
@@ -114,8 +116,8 @@ def run_quality(
         emails = frame[fc.email_column].tolist() if fc.email_column in frame.columns else None
         found += careless.not_in_frame(ids, emails, sample_frame, fc.id_column, fc.email_column)
     table = completeness.measures(q, state, config.completeness)
-    disp = completeness.dispositions(q, state, config.completeness)
-    found.sort(key=lambda f: (f.row, f.check))
+    disp = dispositions if dispositions is not None else completeness.dispositions(q, state, config.completeness)
+    found.sort(key=lambda f: (f.row or 0, f.check))
     return QualityResult(state, found, disp, table, match, notes)
 
 

@@ -2,8 +2,8 @@
 
 from __future__ import annotations
 
-import io
 from pathlib import Path
+from typing import TextIO
 
 from logiccheck.atomic import write_text_atomic
 from logiccheck.data.result import TABLE_COLUMNS, ValidationResult
@@ -17,12 +17,13 @@ def items_csv(result: ValidationResult) -> str:
     return csv_text(TABLE_COLUMNS, table.itertuples(index=False, name=None), sheet_safe=True)
 
 
-def write_findings_csv(result: ValidationResult, fh: io.TextIOBase) -> None:
-    """Every finding, one row each, through the project's one CSV writer: cells that a
-    spreadsheet would run as a formula are escaped, and every cell reads back whole."""
-    write_csv_rows(fh, FINDING_COLUMNS, [], sheet_safe=True)  # type: ignore[arg-type]
+def write_findings_csv(result: ValidationResult, fh: TextIO, *, sheet_safe: bool = True) -> None:
+    """Every finding, one row each, in FINDING_COLUMNS order: `validate --format csv` and
+    `clean`'s findings.csv, through the project's one CSV writer (every cell reads back
+    whole). `sheet_safe` neutralises cells a spreadsheet would run as a formula."""
+    write_csv_rows(fh, FINDING_COLUMNS, [], sheet_safe=sheet_safe)
     for block in result.blocks:
-        write_csv_rows(fh, None, (["" if v is None else v for v in rec] for rec in block.rows_out()), sheet_safe=True)  # type: ignore[arg-type]
+        write_csv_rows(fh, None, (["" if v is None else v for v in rec] for rec in block.rows_out()), sheet_safe=sheet_safe)
 
 
 def write_csv_dir(result: ValidationResult, out: str | Path) -> list[Path]:

@@ -1,4 +1,4 @@
-"""`validate --format json`: the fields of DESIGN §5."""
+"""`validate --format json`: the fields of docs/formats.md."""
 
 from __future__ import annotations
 

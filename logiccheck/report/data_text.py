@@ -8,11 +8,11 @@ from rich.table import Table
 from rich.text import Text
 
 from logiccheck.data.result import ValidationResult
+from logiccheck.diagnostics import SEVERITY_ORDER
 from logiccheck.report.bars import bar_text
 from logiccheck.report.textsafe import terminal_text
 
 STYLE = {"error": "bold red", "warning": "yellow", "info": "cyan"}
-SEVERITY_ORDER = {"error": 0, "warning": 1, "info": 2}
 BAR_WIDTH = 6  # cells of the route bar (fits an 80-column terminal with the flag); 12 on wide ones
 
 

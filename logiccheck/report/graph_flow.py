@@ -16,7 +16,7 @@ from logiccheck.diagnostics import Diagnostic
 from logiccheck.model.questionnaire import Questionnaire
 from logiccheck.report.graph_data import Drawing, build_drawing
 
-# The check whose diagnostics mark a box as unreachable (DESIGN §4).
+# The check whose diagnostics mark a box as unreachable (the lint rules).
 UNREACHABLE_CHECK = "unreachable-item"
 TOP = "_top"
 

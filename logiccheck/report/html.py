@@ -14,6 +14,7 @@ from typing import Any
 import pandas as pd
 
 from logiccheck import __version__
+from logiccheck.diagnostics import SEVERITY_ORDER
 from logiccheck.report.extra import require_report_extra
 from logiccheck.report.report_data import ReportData
 from logiccheck.report.textsafe import html_text
@@ -97,7 +98,7 @@ def _finding_groups(data: ReportData) -> list[dict[str, Any]]:
                      sample[["respondent", "item", "value", "message"]].to_dict("records")],
             "more_rows": max(len(part) - MAX_ROWS, 0),
         })
-    order = {"error": 0, "warning": 1, "info": 2}
+    order = SEVERITY_ORDER
     groups.sort(key=lambda g: (order.get(g["severity"], 9), -g["count"]))
     return groups
 

@@ -1,4 +1,4 @@
-"""`lint --format json`: the fields of DESIGN §5."""
+"""`lint --format json`: the fields of docs/formats.md."""
 
 from __future__ import annotations
 

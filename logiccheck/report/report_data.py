@@ -14,13 +14,12 @@ from typing import Any
 
 import pandas as pd
 
-from logiccheck.diagnostics import Diagnostic
+from logiccheck.diagnostics import SEVERITY_ORDER, Diagnostic
 from logiccheck.model.questionnaire import Questionnaire
 from logiccheck.safety.text import clip
 
 ITEM_COLUMNS = ["item", "expected", "answered", "out_of_path", "missing_on_path", "invalid"]
 FINDING_COLUMNS = ["check", "severity", "respondent", "row", "item", "value", "message"]
-SEVERITY_ORDER = {"error": 0, "warning": 1, "info": 2}
 
 
 @dataclass
@@ -182,7 +181,7 @@ def settings_used(config: Any, mapping: Any = None) -> dict[str, Any]:
     """
     out: dict[str, Any] = {"configuration": getattr(config, "source", None) or "none found (defaults)"}
     if mapping is not None:
-        out["mapping"] = mapping.model_dump(exclude_defaults=True) or "defaults (DESIGN §6 layout)"
+        out["mapping"] = mapping.model_dump(exclude_defaults=True) or "defaults (docs/formats.md layout)"
     for table in ("checks", "quality", "clean"):
         value = getattr(config, table, None)
         if value:

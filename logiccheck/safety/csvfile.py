@@ -22,28 +22,28 @@ from logiccheck.clean.sheet import escape
 _SPECIAL = frozenset(',"\r\n')
 
 
-def csv_cell(value: object, sheet_safe: bool = False) -> str:
+def csv_cell(value: object, sheet_safe: bool = False, delimiter: str = ",") -> str:
     """One cell as CSV text; None is an empty cell."""
     text = "" if value is None else str(value)
     if sheet_safe:
         text = escape(text)
-    if _SPECIAL.isdisjoint(text):
+    if _SPECIAL.isdisjoint(text) and delimiter not in text:
         return text
     return '"' + text.replace('"', '""') + '"'
 
 
-def csv_line(values: Iterable[object], sheet_safe: bool = False) -> str:
-    return ",".join(csv_cell(v, sheet_safe) for v in values) + "\n"
+def csv_line(values: Iterable[object], sheet_safe: bool = False, delimiter: str = ",") -> str:
+    return delimiter.join(csv_cell(v, sheet_safe, delimiter) for v in values) + "\n"
 
 
 def write_csv_rows(handle: TextIO, header: Iterable[object] | None, rows: Iterable[Iterable[object]],
-                   sheet_safe: bool = False) -> None:
+                   sheet_safe: bool = False, delimiter: str = ",") -> None:
     """Write `header` (if any) and `rows`; `sheet_safe` escapes formula-like cells,
     header included."""
     if header is not None:
-        handle.write(csv_line(header, sheet_safe))
+        handle.write(csv_line(header, sheet_safe, delimiter))
     for row in rows:
-        handle.write(csv_line(row, sheet_safe))
+        handle.write(csv_line(row, sheet_safe, delimiter))
 
 
 def write_csv_file(path: str | Path, header: Iterable[object], rows: Iterable[Iterable[object]],

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import difflib
 import functools
 from dataclasses import dataclass, field
 
@@ -16,6 +15,7 @@ from lark.exceptions import (
 from lark.indenter import DedentError
 
 from logiccheck.diagnostics import Diagnostic, Severity, Span
+from logiccheck.suggest import did_you_mean
 from logiccheck.syntax.grammar import SpecIndenter, spec_parser
 
 MAX_ERRORS = 20
@@ -139,8 +139,7 @@ def _type_word_hint(err: UnexpectedToken) -> str | None:
     if err.token.type != "NAME" or not {"single", "multi", "text"} <= words:
         return None
     word = str(err.token)
-    close = [_TYPE_SYNONYMS[word]] if word in _TYPE_SYNONYMS else difflib.get_close_matches(word, TYPE_WORDS, n=1, cutoff=0.6)
-    guess = f"; did you mean `{close[0]}`?" if close else ""
+    guess = f"; did you mean `{_TYPE_SYNONYMS[word]}`?" if word in _TYPE_SYNONYMS else did_you_mean(word, TYPE_WORDS)
     return f"`{err.token}` is not an answer type{guess} (the types are {', '.join(TYPE_WORDS)})"
 
 

@@ -1,4 +1,4 @@
-"""Oracle: a plain row-by-row interpreter of DESIGN §3 (and the semantics decisions in
+"""Oracle: a plain row-by-row interpreter of the routing semantics (DEVELOPERS.md) (and the semantics decisions in
 DEVELOPERS.md), written without numpy or pyarrow. It reads the CSV with the standard
 library's csv module and judges every cell by itself, so it shares nothing with the
 vectorised evaluator but the resolved questionnaire."""

@@ -2,7 +2,7 @@
 
 Every condition is translated to SQL, where NULL is unknown: SQL's AND, OR and NOT on
 NULL are Kleene's strong three-valued logic (the SQL standard's NULL semantics), which is
-what DESIGN §3 asks for. DuckDB reads the CSV itself (all columns as text), so the
+what the routing semantics (DEVELOPERS.md) asks for. DuckDB reads the CSV itself (all columns as text), so the
 reader, the cell judging, the routing and the counting are all done apart from numpy.
 """
 

@@ -1,4 +1,4 @@
-"""The validate, check and simulate commands: DESIGN §5 JSON, exit status, CSV files,
+"""The validate, check and simulate commands: docs/formats.md JSON, exit status, CSV files,
 the README's first command on the demo export, deterministic simulation."""
 
 from __future__ import annotations

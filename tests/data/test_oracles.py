@@ -4,7 +4,7 @@ random exports from `simulate` (with planted faults and random cell noise):
 * DuckDB as the oracle: every condition translated to SQL (NULL as unknown; SQL's NULL
   logic is Kleene's strong three-valued logic) gives the same per-item table and the same
   out-of-path set (`sqloracle.py`).
-* A plain row-by-row Python interpreter of DESIGN §3 agrees on every cell state: due,
+* A plain row-by-row Python interpreter of the routing semantics (DEVELOPERS.md) agrees on every cell state: due,
   has a value, valid; and on which stop fired (`rowwise.py`).
 """
 

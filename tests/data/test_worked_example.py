@@ -1,5 +1,5 @@
 """A worked example with hand-computed counts: a gate with a known split and a follow-up
-with answers where it was not due (hand-computed; the counting rules are DESIGN §5)."""
+with answers where it was not due (hand-computed; the counting rules are docs/formats.md)."""
 
 from __future__ import annotations
 

@@ -1,4 +1,4 @@
-"""A brute-force reading of DESIGN §3, written from scratch in plain Python (no z3).
+"""A brute-force reading of the routing semantics (DEVELOPERS.md), written from scratch in plain Python (no z3).
 
 It enumerates every respondent over small domains (each item blank, or any code, value
 or non-response code; a multi item blank or any non-empty set of options), walks the

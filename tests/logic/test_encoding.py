@@ -1,4 +1,4 @@
-"""The z3 encoding follows DESIGN §3 on small hand-checked cases."""
+"""The z3 encoding follows the routing semantics (DEVELOPERS.md) on small hand-checked cases."""
 
 from __future__ import annotations
 

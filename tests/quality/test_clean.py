@@ -10,11 +10,12 @@ import pytest
 from click.testing import CliRunner
 
 from logiccheck.clean.apply import reverse_audit
-from logiccheck.clean.io import file_hash, read_export, read_sheet_csv
+from logiccheck.clean.io import file_hash, read_sheet_csv
 from logiccheck.clean.policy import CleanPolicy, PolicyError, load_policy
 from logiccheck.clean.run import clean_export
 from logiccheck.clean.sheet import escape, unescape
 from logiccheck.cli.main import cli
+from logiccheck.data.readers import read_cells as read_export
 from logiccheck.loader import load_text
 from tests.quality.planted import COLUMNS, SPEC, build, card_row
 

@@ -91,8 +91,8 @@ def test_asked_basis_ignores_shared_skips() -> None:
 def test_duplicate_ids_and_exact_copies() -> None:
     ids = ["a", "b", "a", "c", "d"]
     found = duplicate_ids(ids)
-    assert [(f.respondent, f.row) for f in found] == [("a", 0), ("a", 2)]
+    assert [(f.respondent, f.row) for f in found] == [("a", 1), ("a", 3)]  # 1-based data rows
     frame = pd.DataFrame({"x": [1, 2, 1, 1, np.nan], "y": [3, 3, 3, 3, np.nan], "z": [np.nan, 1, np.nan, 2, np.nan]})
     dup = duplicate_responses(ids, frame, min_answered=2)
-    assert [f.row for f in dup] == [0, 2]
-    assert all(f.value == 0 for f in dup)  # the first row of the group
+    assert [f.row for f in dup] == [1, 3]
+    assert all(f.value == "0" for f in dup)  # the first row of the group (0-based)

@@ -3,7 +3,7 @@ respondents are left alone."""
 
 from __future__ import annotations
 
-from logiccheck.clean.io import read_export
+from logiccheck.data.readers import read_cells as read_export
 from logiccheck.loader import load_text
 from logiccheck.quality.run import run_quality
 from tests.quality.planted import SPEC, build
@@ -21,7 +21,7 @@ def test_every_planted_case_and_only_it(tmp_path) -> None:  # type: ignore[no-un
         got[f.respondent].add(f.check)
     assert got == expected
     near = [f for f in result.findings if f.check == "near-duplicate"]
-    assert {f.value for f in near} == {round(12 / 14, 4)}
+    assert {float(f.value) for f in near} == {round(12 / 14, 4)}
     assert "p-near2" in next(f.message for f in near if f.respondent == "p-near1")
 
     disp = dict(zip(result.state.ids, result.dispositions.tolist(), strict=True))

@@ -65,7 +65,7 @@ def test_labels_fit_inside_their_boxes() -> None:
 
 
 def test_bikeshare_picture_content_matches_the_example() -> None:
-    # The worked example is DESIGN §3's normative spec: its comments say which
+    # The worked example is the routing semantics (DEVELOPERS.md)'s normative spec: its comments say which
     # condition reads which item.
     q = load_file("specs/bikeshare.qlc").questionnaire
     pic = flow_picture(q)

@@ -12,11 +12,12 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from logiccheck.clean.apply import reverse_audit
-from logiccheck.clean.io import read_export, read_sheet_csv
+from logiccheck.clean.io import read_sheet_csv
 from logiccheck.clean.policy import CleanPolicy
 from logiccheck.clean.run import clean_export
 from logiccheck.clean.sheet import unescape
 from logiccheck.data.readers import open_export
+from logiccheck.data.readers import read_cells as read_export
 from logiccheck.loader import load_text
 from logiccheck.safety.csvfile import csv_text, read_csv_rows, write_csv_file
 from tests.robustness.common import HEADER, SPEC, write_export

@@ -57,8 +57,8 @@ def _roots(st: Statement) -> list[str]:
     "item that has no value there. A whole condition that always holds is `always-asked`.",
     why="The condition does not test what its author meant; whatever it guards is always or "
     "never asked for a reason nobody wrote down.",
-    bad='trips: number 1..2000 "Trips?" strict\nheavy: text "Why so many?" when trips > 5000',
-    good='trips: number 1..2000 "Trips?" strict\nheavy: text "Why so many?" when trips > 500',
+    bad='trips: number 1..2000 "Trips?" strict\nodd: text "Why so many, or so few?" when trips > 5000 or trips < 3',
+    good='trips: number 1..2000 "Trips?" strict\nodd: text "Why so many, or so few?" when trips > 500 or trips < 3',
 )
 def impossible_comparison(ctx: LintContext) -> Iterable[Diagnostic]:
     a = analysis(ctx)

@@ -102,8 +102,8 @@ def unreachable_item(ctx: LintContext) -> Iterable[Diagnostic]:
     "reaches it: its section and grid conditions, earlier stops and skips already imply it.",
     why="A redundant condition is harmless today but misleads readers and breaks silently "
     "when the section condition is edited; drop it or make the intent explicit.",
-    bad='section riders "Riders" when used = yes\n  freq: single freq "How often?" when used = yes',
-    good='section riders "Riders" when used = yes\n  freq: single freq "How often?"',
+    bad='used: single yesno "Used?"\nsection riders "Riders" when used = yes\n  freq: single freq "How often?" when used = yes',
+    good='used: single yesno "Used?"\nsection riders "Riders" when used = yes\n  freq: single freq "How often?"',
 )
 def always_asked(ctx: LintContext) -> Iterable[Diagnostic]:
     a = analysis(ctx)

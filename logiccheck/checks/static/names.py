@@ -2,12 +2,12 @@
 
 from __future__ import annotations
 
-import difflib
 from collections.abc import Iterable
 
 from logiccheck.checks.context import LintContext
 from logiccheck.checks.registry import describe, register
 from logiccheck.diagnostics import Diagnostic
+from logiccheck.suggest import did_you_mean
 
 describe(
     "syntax-error",
@@ -45,8 +45,7 @@ def duplicate_name(ctx: LintContext) -> Iterable[Diagnostic]:
 
 
 def _suggest(name: str, candidates: Iterable[str]) -> str:
-    close = difflib.get_close_matches(name, list(candidates), n=1, cutoff=0.6)
-    return f"; did you mean `{close[0]}`?" if close else ""
+    return did_you_mean(name, candidates)
 
 
 @register(
