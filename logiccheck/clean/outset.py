@@ -25,6 +25,8 @@ import tempfile
 from collections.abc import Callable
 from pathlib import Path
 
+from logiccheck.atomic import output_mode
+
 SUMMARY = "summary.json"
 _AT_FDCWD = -100
 _RENAME_EXCHANGE = 2
@@ -84,12 +86,7 @@ def _holds_working_folder(out: Path) -> bool:
 
 
 def _folder_mode(out: Path) -> int:
-    try:
-        return out.stat().st_mode & 0o7777
-    except OSError:
-        mask = os.umask(0)
-        os.umask(mask)
-        return 0o777 & ~mask
+    return output_mode(out, new=0o777, bits=0o7777)
 
 
 def write_set(out: Path, writers: dict[str, Callable[[Path], None]]) -> list[Path]:
