@@ -8,6 +8,7 @@ from logiccheck import __version__
 from logiccheck.cli.check import check_command
 from logiccheck.cli.clean import clean_command
 from logiccheck.cli.diff import diff_command
+from logiccheck.cli.draft import draft_command
 from logiccheck.cli.explain import explain_command
 from logiccheck.cli.graph import graph_command
 from logiccheck.cli.lint import lint_command
@@ -42,6 +43,7 @@ cli.add_command(diff_command)
 cli.add_command(report_command)
 cli.add_command(clean_command)
 cli.add_command(rates_command)
+cli.add_command(draft_command)
 
 
 def main() -> None:
