@@ -22,6 +22,7 @@ from tests.robustness.common import cli, cli_process, fingerprint, one_line_erro
         ["simulate", "{spec}", "-n", "3", "--out", "{tmp}/s.csv", "--seed", "1"],  # faults file beside it: see below
         ["validate", "{spec}", "--data", "{data}", "--format", "html", "--out", "{data}"],
         ["report", "{spec}", "--data", "{data}", "--out", "{data}"],
+        ["draft", "--data", "{data}", "--out", "{data}"],
         ["clean", "{spec}", "--data", "{data}", "--out", "{tmp}/o", "--sample", "{tmp}/o/audit.csv"],
         ["clean", "{spec}", "--data", "{data}", "--out", "{tmp}/o", "--policy", "{tmp}/o/summary.json"],
         ["clean", "{spec}", "--data", "{data}", "--out", "{tmp}", "--frame", "{tmp}/findings.csv"],
