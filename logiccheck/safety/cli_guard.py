@@ -20,6 +20,8 @@ from logiccheck.safety.paths import PathClash, guard_file_target, guard_folder, 
 
 # Parameters that name an output; every other path parameter is an input.
 OUTPUT_PARAMS = ("out",)
+# How an input parameter is named in the one-line error.
+INPUT_LABELS = {"spec": "the spec", "specs": "the spec", "data": "the export", "old": "the old spec", "new": "the new spec"}
 # Commands whose --out is a folder, and the files they may write in it.
 FOLDER_OUTPUTS: dict[str, Callable[[dict[str, Any]], list[str]]] = {}
 
@@ -79,7 +81,7 @@ def check_paths(command: click.Command, params: dict[str, Any]) -> None:
     for name in names:
         if name in OUTPUT_PARAMS:
             continue
-        label = "the spec" if name in ("spec", "specs") else f"--{name.replace('_file', '').replace('_', '-')}"
+        label = INPUT_LABELS.get(name, f"--{name.replace('_file', '').replace('_', '-')}")
         inputs += [(label, v) for v in _values(params.get(name))]
     specs = [v for n in ("spec", "specs") for v in _values(params.get(n))]
     inputs += [("the configuration", c) for c in _config_files(specs)]
