@@ -19,7 +19,6 @@ from logiccheck.checks.data_context import DataContext
 from logiccheck.checks.data_runner import run_data_checks
 from logiccheck.config import Config, ConfigError, config_for
 from logiccheck.data.dispositions import tally
-from logiccheck.data.findings import FindingBlock
 from logiccheck.data.frame import Layout
 from logiccheck.data.mapping import DataMapping, MappingError, check_mapping, load_mapping
 from logiccheck.data.readers import (
@@ -40,6 +39,7 @@ from logiccheck.quality import completeness
 from logiccheck.quality.bridge import state_from_validation
 from logiccheck.quality.completeness import RuleError
 from logiccheck.quality.config import QualityConfig
+from logiccheck.quality.duplicates import MatchScores
 from logiccheck.quality.route import RouteError, RouteState
 
 Progress = Callable[[int, int], None]
@@ -235,8 +235,11 @@ def _run(
     if mapping.frame is not None:
         result.sample_frame = read_cells(mapping.frame)
     ctx = _context(q, result, raw, config, mapping, quality)
-    result.blocks.extend(_quality_adapter(q, result, raw, quality))
     result.blocks.extend(run_data_checks(ctx))
+    # Who each near-duplicate matched, for the cleaner's keep-the-first rule.
+    near = ctx.memo.get("quality.near")
+    if near is not None:
+        result.match = MatchScores(near.score, near.partner, near.compared)
     result.analyses = run_analyses(ctx)
     result.notes.extend(ctx.notes)
     for analysis in result.analyses.values():
@@ -285,29 +288,3 @@ def _context(
         sample_frame=result.sample_frame,
         options={"settings": config},
     )
-
-
-def _quality_adapter(q: Questionnaire, result: PipelineResult, raw: pa.Table, quality: QualityConfig) -> list[FindingBlock]:
-    """The quality checks not yet written as `@data_check` units, run on the same route
-    state, typed frame and dispositions (remove once they are units)."""
-    from logiccheck.quality.run import run_quality
-
-    if result.frame is None or result.respondents == 0 or result.state is None:
-        return []
-    frame = result.frame.reset_index(drop=True).copy()
-    for c in (quality.speed.duration_column, quality.frame.email_column):
-        if c in raw.column_names and c not in frame.columns:
-            frame[c] = column_texts(raw, c)
-    try:
-        found = run_quality(q, frame, quality, result.sample_frame, id_column="id", state=result.state,
-                            dispositions=pd.Series(result.disposition, index=result.state.ids))
-    except (ValueError, KeyError) as err:
-        result.notes.append(f"quality checks not run: {err}")
-        return []
-    result.match = found.match
-    result.notes.extend(found.notes)
-    return [
-        FindingBlock(f.check, f.severity, f.item, f.message, np.array([(f.row or 1) - 1]),
-                     np.array([f.respondent], dtype=object), None if f.value is None else [f.value])
-        for f in found.findings
-    ]
