@@ -53,7 +53,7 @@ class ConfigError(Exception):
 class Config(BaseModel):
     """The validated configuration; `source` is the file it came from (None: defaults)."""
 
-    model_config = ConfigDict(extra="forbid", populate_by_name=True)
+    model_config = ConfigDict(extra="forbid", populate_by_name=True, strict=True)
 
     fail_on: Literal["error", "warning", "info"] | None = Field(default=None, alias="fail-on")
     format: str | None = None
@@ -137,7 +137,15 @@ def _pyproject_table(path: Path) -> dict[str, Any] | None:
     try:
         data = read_toml(path)
     except ConfigError:
-        return None  # someone else's broken pyproject is not our configuration
+        # Someone else's broken pyproject is not our configuration; one that names our
+        # table is, and stops the run as a broken logiccheck.toml does.
+        try:
+            mentions = b"tool.logiccheck" in path.read_bytes()
+        except OSError:
+            mentions = False
+        if mentions:
+            raise
+        return None
     table = data.get("tool", {}).get("logiccheck") if isinstance(data.get("tool"), dict) else None
     return table if isinstance(table, dict) else None
 

@@ -34,7 +34,8 @@ class PolicyError(ValueError):
 
 
 class CleanPolicy(BaseModel):
-    model_config = ConfigDict(extra="forbid")
+    # Strict: `blank_invalid = "no"` is a mistake to report, not a false to guess.
+    model_config = ConfigDict(extra="forbid", strict=True)
 
     blank_out_of_path: bool = True  # answers the routing did not ask for (with cascade)
     blank_invalid: bool = True  # undeclared codes, out-of-range numbers, non-response on strict items
@@ -51,6 +52,16 @@ class CleanPolicy(BaseModel):
         for name in v:
             if name not in RESPONDENT_CHECKS:
                 raise ValueError(f"unknown check {name!r}; use one of {', '.join(RESPONDENT_CHECKS)}")
+        return v
+
+    @field_validator("keep_dispositions")
+    @classmethod
+    def _keeps_someone(cls, v: list[str] | None) -> list[str] | None:
+        if v is not None and not v:
+            raise ValueError(
+                "an empty list keeps no disposition, so every respondent would be removed; "
+                "list the dispositions to keep (e.g. [\"complete\", \"partial\"]) or leave the key out to keep everyone"
+            )
         return v
 
     @property

@@ -54,6 +54,12 @@ class LazyGroup(click.Group):
         super().__init__(*args, **kwargs)  # type: ignore[arg-type]
         self.lazy = lazy
 
+    def add_command(self, cmd: click.Command, name: str | None = None) -> None:
+        # Every command runs behind the path check and the one-line error net.
+        from logiccheck.safety.cli_guard import guarded
+
+        super().add_command(guarded(cmd), name)
+
     def list_commands(self, ctx: click.Context) -> list[str]:
         return sorted({*super().list_commands(ctx), *self.lazy})
 

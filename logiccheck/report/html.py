@@ -17,6 +17,7 @@ from logiccheck import __version__
 from logiccheck.diagnostics import SEVERITY_ORDER
 from logiccheck.report.extra import require_report_extra
 from logiccheck.report.report_data import ReportData
+from logiccheck.report.textsafe import html_text
 
 MAX_IDS = 100  # respondent ids listed per check before "and N more"
 MAX_ROWS = 25  # example findings shown per check
@@ -34,7 +35,17 @@ def _environment() -> Any:
         undefined=jinja2.StrictUndefined,
         trim_blocks=True,
         lstrip_blocks=True,
+        finalize=_neutral,
     )
+
+
+def _neutral(value: Any) -> Any:
+    """Every printed text has its bidirectional controls shown, not obeyed."""
+    import markupsafe
+
+    if isinstance(value, str) and not isinstance(value, markupsafe.Markup):
+        return html_text(value)
+    return value
 
 
 def _num(value: Any) -> int:

@@ -16,6 +16,7 @@ import pandas as pd
 
 from logiccheck.diagnostics import SEVERITY_ORDER, Diagnostic
 from logiccheck.model.questionnaire import Questionnaire
+from logiccheck.safety.text import clip
 
 ITEM_COLUMNS = ["item", "expected", "answered", "out_of_path", "missing_on_path", "invalid"]
 FINDING_COLUMNS = ["check", "severity", "respondent", "row", "item", "value", "message"]
@@ -122,7 +123,7 @@ def findings_from_blocks(blocks: Iterable[Any]) -> pd.DataFrame:
             continue
         values = list(b.values) if b.values is not None else [None] * n
         if "{value}" in b.message:
-            messages: Any = [b.message.replace("{value}", v or "") for v in values]
+            messages: Any = [b.message.replace("{value}", clip(v or "")) for v in values]
         else:
             messages = b.message
         parts.append(pd.DataFrame({

@@ -111,7 +111,7 @@ def test_cli_writes_the_draft_and_never_the_export(tmp_path: Path) -> None:
     assert out.read_text().startswith("# DRAFT") and "review it" in ran.stderr
     assert run_cli("lint", str(out)).returncode == 0
     refused = run_cli("draft", "--data", str(export), "--out", str(export))
-    assert refused.returncode == 2 and "the export itself" in refused.stderr
+    assert refused.returncode == 2 and "would replace the export" in refused.stderr
     assert export.read_bytes() == before
     to_stdout = run_cli("draft", "--data", str(export))
     assert to_stdout.returncode == 0 and to_stdout.stdout == out.read_text()
