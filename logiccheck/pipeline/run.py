@@ -242,7 +242,8 @@ def _run(
     ctx = _context(q, result, raw, config, mapping, quality)
     if opts.margins is not None:
         ctx.options["margins"] = opts.margins
-    result.blocks.extend(run_data_checks(ctx))
+    # A check turned off in [checks] is not run at all (some cost real time on large exports).
+    result.blocks.extend(run_data_checks(ctx, disable=config.disabled if opts.check_settings else ()))
     # Who each near-duplicate matched, for the cleaner's keep-the-first rule.
     near = ctx.memo.get("quality.near")
     if near is not None:
