@@ -175,22 +175,19 @@ def _pairs_across(
 
 
 def blocks_for(codes: np.ndarray, size: int, groups: np.ndarray | None = None) -> list[np.ndarray]:
-    """Column blocks of at most `size`. Columns with the same group label (e.g. items the
-    routing asks of the same respondents) go together, in order, so answered patterns
-    inside a block are mostly all-or-nothing; without labels, columns answered by
-    exactly the same respondents are grouped."""
+    """Column blocks of exactly `size` (the last may be shorter). Columns are ordered by
+    group label (e.g. items the routing asks of the same respondents; without labels,
+    columns answered by exactly the same respondents), so answered patterns inside a
+    block are mostly all-or-nothing; but a block never stops at a group's end: a block of
+    one or two items lets almost every pair collide (one mismatch is allowed per block),
+    which made the search quadratic on exports with many small routing groups."""
     m = codes.shape[1]
     if m == 0 or size <= 0:
         return []
     if groups is None:
         groups = column_labels(codes != 0)
     order = np.lexsort((np.arange(m), np.asarray(groups)))
-    out: list[np.ndarray] = []
-    starts, lengths = runs(np.asarray(groups)[order])
-    for s, g in zip(starts.tolist(), lengths.tolist(), strict=True):
-        cols = order[s : s + g]
-        out.extend(cols[i : i + size] for i in range(0, g, size))
-    return out
+    return [order[i : i + size] for i in range(0, m, size)]
 
 
 def column_labels(mask: np.ndarray) -> np.ndarray:
