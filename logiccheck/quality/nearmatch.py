@@ -175,19 +175,34 @@ def _pairs_across(
 
 
 def blocks_for(codes: np.ndarray, size: int, groups: np.ndarray | None = None) -> list[np.ndarray]:
-    """Column blocks of exactly `size` (the last may be shorter). Columns are ordered by
-    group label (e.g. items the routing asks of the same respondents; without labels,
-    columns answered by exactly the same respondents), so answered patterns inside a
-    block are mostly all-or-nothing; but a block never stops at a group's end: a block of
-    one or two items lets almost every pair collide (one mismatch is allowed per block),
-    which made the search quadratic on exports with many small routing groups."""
+    """Column blocks of at most `size` (any partition keeps the search exact; it only
+    sets the speed). Columns with the same group label (e.g. items the routing asks of
+    the same respondents; without labels, columns answered by exactly the same
+    respondents) go together, so answered patterns inside a block are mostly
+    all-or-nothing; a group is cut into blocks of nearly equal length. Columns of small
+    groups are pooled into full blocks instead: a block of one or two items lets almost
+    every pair collide (one mismatch is allowed per block), which made the search
+    quadratic on exports with many small routing groups."""
     m = codes.shape[1]
     if m == 0 or size <= 0:
         return []
     if groups is None:
         groups = column_labels(codes != 0)
     order = np.lexsort((np.arange(m), np.asarray(groups)))
-    return [order[i : i + size] for i in range(0, m, size)]
+    out: list[np.ndarray] = []
+    pooled: list[np.ndarray] = []
+    starts, lengths = runs(np.asarray(groups)[order])
+    for s, g in zip(starts.tolist(), lengths.tolist(), strict=True):
+        cols = order[s : s + g]
+        if g < max(2, size // 2):
+            pooled.append(cols)
+            continue
+        parts = -(-g // size)
+        out.extend(np.array_split(cols, parts))
+    if pooled:
+        rest = np.concatenate(pooled)
+        out.extend(rest[i : i + size] for i in range(0, rest.size, size))
+    return out
 
 
 def column_labels(mask: np.ndarray) -> np.ndarray:
