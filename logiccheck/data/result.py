@@ -37,6 +37,7 @@ class ValidationResult:
     has_value: np.ndarray | None = None
     valid: np.ndarray | None = None
     frame: pd.DataFrame | None = None  # the typed frame (values where valid, NaN otherwise)
+    nonresponse: np.ndarray | None = None  # valid non-response codes, respondents × items (with keep_cells)
     missing_columns: list[tuple[str, str]] = field(default_factory=list)
     unknown_columns: list[str] = field(default_factory=list)
     # Items whose routing reads an item with a missing column → those items: not judged.
