@@ -98,8 +98,9 @@ class ValidationResult:
             {"id": self.ids, "due": self.due[:, j], "has_value": self.has_value[:, j], "valid": self.valid[:, j]}
         )
 
-    def to_json(self) -> dict[str, Any]:
-        """docs/formats.md: respondents, items, findings, dispositions."""
+    def to_json(self, findings: Any = None) -> dict[str, Any]:
+        """docs/formats.md: respondents, items, findings, dispositions. `findings`, when
+        given, stands in for the findings list (a writer that streams them)."""
         counts = ("expected", "answered", "out_of_path", "missing_on_path", "invalid")
         items = [
             {"item": r["item"], **{k: int(r[k]) for k in counts}, "over_expected": bool(r["over_expected"])}
@@ -108,7 +109,7 @@ class ValidationResult:
         return {
             "respondents": int(self.respondents),
             "items": items,
-            "findings": [f.to_json() for f in self.findings],
+            "findings": [f.to_json() for f in self.findings] if findings is None else findings,
             "dispositions": dict(self.dispositions),
             "summary": self.severity_counts(),
         }

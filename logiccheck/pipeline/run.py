@@ -110,8 +110,8 @@ class PipelineResult(ValidationResult):
     def disposition_counts(self) -> dict[str, int]:
         return dict(self.dispositions)
 
-    def to_json(self) -> dict[str, Any]:
-        out = super().to_json()
+    def to_json(self, findings: Any = None) -> dict[str, Any]:
+        out = super().to_json(findings)
         for analysis in self.analyses.values():
             for key, value in analysis.sections.items():
                 out.setdefault(key, value)
