@@ -28,6 +28,7 @@ CHECK_MODULES = (
     "logiccheck.checks.routing",
     "logiccheck.data.checks",
     "logiccheck.quality.checks",
+    "logiccheck.draft.mismatch",
 )
 
 

@@ -19,7 +19,7 @@ from logiccheck.model import nodes as n
 from logiccheck.model.questionnaire import Entry, Questionnaire
 
 # Why a cell is invalid (0: it is not).
-OK, NOT_A_NUMBER, NOT_A_CODE, OUT_OF_RANGE, NONRESPONSE_STRICT, NOT_INTEGER, BAD_OPTION_CELL = range(7)
+OK, NOT_A_NUMBER, NOT_A_CODE, OUT_OF_RANGE, NONRESPONSE_STRICT, NOT_INTEGER, BAD_OPTION_CELL, NOT_A_LABEL = range(8)
 
 REASON_TEXT = {
     NOT_A_NUMBER: "is not a number",
@@ -28,6 +28,7 @@ REASON_TEXT = {
     NONRESPONSE_STRICT: "is a non-response code, but the item is `strict`",
     NOT_INTEGER: "is not a whole number",
     BAD_OPTION_CELL: "has an option cell that is not 1, 0 or blank",
+    NOT_A_LABEL: "is neither one of its codes nor one of its answer labels",
 }
 
 
@@ -41,6 +42,9 @@ class NamePlan:
     columns: list[str]  # export columns read (one, or one per option)
     options: list[int] = field(default_factory=list)  # multi option values
     labels: dict[int, str] = field(default_factory=dict)  # code value -> label
+    # Answer texts and label names, trimmed and case-folded -> code value (labels in cells).
+    answers: dict[str, int] = field(default_factory=dict)
+    answer_texts: list[str] = field(default_factory=list)  # as written in the spec, for did-you-mean
     allowed: np.ndarray | None = None  # allowed values of a coded item (with nonresponse)
     nonresponse: np.ndarray | None = None  # nonresponse values valid for this item
     global_nr: np.ndarray | None = None  # every nonresponse value of the spec
@@ -84,6 +88,11 @@ def plan_layout(q: Questionnaire, mapping: DataMapping, header: list[str]) -> La
         if codes is not None:
             plan.labels = {o.value: o.label for o in codes.options}
         plan.labels.update({o.value: o.label for o in q.nonresponse})
+        options = [*(codes.options if codes is not None else []), *q.nonresponse]
+        # A label name is matched only where no answer text reads the same.
+        plan.answers = {o.label.casefold(): o.value for o in options}
+        plan.answers.update({o.text.strip().casefold(): o.value for o in options})
+        plan.answer_texts = [o.text for o in options]
         allows_nr = q.allows_nonresponse(stmt)
         plan.nonresponse = nr_values if allows_nr else np.array([], dtype=np.float64)
         plan.global_nr = nr_values
@@ -348,11 +357,58 @@ class Verdicts:
     unanswered: np.ndarray | None = None
 
 
+def decode(plan: NamePlan, d: Distinct, mapping: DataMapping) -> tuple[Distinct, np.ndarray | None]:
+    """The distinct texts as the judge reads them: answer labels as their codes (per the
+    mapping's `values`), decimal commas as points. Also, per text, whether it is a word
+    that matches no label (None when labels are not read)."""
+    # Number items read their non-response labels ("Don't know") too.
+    read_labels = mapping.values != "codes" and bool(plan.answers)
+    coded = plan.allowed is not None
+    if not read_labels and mapping.decimal == ".":
+        return d, None
+    texts = d.texts
+    out: list[str] = []
+    unmatched = np.zeros(len(texts), dtype=bool)
+    for i, text in enumerate(texts):
+        t = text.strip()
+        if mapping.decimal == "," and t.count(",") == 1 and t.replace(",", "", 1).lstrip("+-").isdigit():
+            t = t.replace(",", ".")
+        if read_labels:
+            code = plan.answers.get(t.casefold())
+            numeric = _is_number(t)
+            if code is not None and (mapping.values == "labels" or not numeric):
+                t = str(code)
+            elif not numeric and t and coded:
+                unmatched[i] = True
+        out.append(t)
+    return Distinct(pa.array(out, pa.string()), d.index), (unmatched if read_labels else None)
+
+
+def _is_number(text: str) -> bool:
+    try:
+        float(text)
+    except ValueError:
+        return False
+    return True
+
+
+def label_hint(plan: NamePlan, text: str) -> str:
+    """`; did you mean "Agree"?` for a cell close to one of the item's answer texts."""
+    import difflib
+
+    shown = {t.strip().casefold(): t for t in plan.answer_texts}
+    close = difflib.get_close_matches(text.strip().casefold(), list(shown), n=1, cutoff=0.6)
+    return f'; did you mean "{shown[close[0]]}"?' if close else ""
+
+
 def verdicts(plan: NamePlan, d: Distinct, mapping: DataMapping) -> Verdicts:
     """Judge a value column's distinct texts."""
     is_ns, is_un, is_blank = _marker_masks_distinct(d, mapping)
-    present_d, value_d, parsed_d = _numbers_distinct(d, is_blank)
+    read, unmatched = decode(plan, d, mapping)
+    present_d, value_d, parsed_d = _numbers_distinct(read, is_blank)
     reason_d, valid_d, value_d, nr_d = judge(plan, present_d, value_d, parsed_d)
+    if unmatched is not None:
+        reason_d[unmatched & (reason_d == NOT_A_NUMBER)] = NOT_A_LABEL
     state = (
         present_d.astype(np.uint8) * PRESENT_BIT
         | valid_d.astype(np.uint8) * VALID_BIT
@@ -417,7 +473,8 @@ def judge_key(plan: NamePlan) -> tuple:
     def values(a: np.ndarray | None) -> tuple[float, ...] | None:
         return None if a is None else tuple(a.tolist())
 
-    return (values(plan.allowed), values(plan.nonresponse), values(plan.global_nr), plan.integer, plan.lo, plan.hi, strict)
+    return (values(plan.allowed), values(plan.nonresponse), values(plan.global_nr), plan.integer, plan.lo, plan.hi, strict,
+            tuple(sorted(plan.answers.items())))
 
 
 def _gather(
@@ -521,11 +578,14 @@ def _multi_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping, blank: s
                 token = token.strip()
                 if token == "" or token in blank:
                     continue
+                label = plan.answers.get(token.casefold()) if mapping.values != "codes" else None
                 try:
-                    v = float(token)
+                    v = float(label if label is not None and mapping.values == "labels" else token)
                 except ValueError:
-                    d_bad[i] = True
-                    continue
+                    if label is None:
+                        d_bad[i] = True
+                        continue
+                    v = float(label)
                 j = position.get(int(v)) if v.is_integer() else None
                 if j is None:
                     d_bad[i] = True

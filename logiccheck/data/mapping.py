@@ -81,6 +81,12 @@ class DataMapping(BaseModel):
             raise ValueError('must be ",", ";", "tab" or "|"')
         return value
 
+    # How coded answers are written: numeric codes, answer labels ("Yes", matched after
+    # trimming and ignoring case; a label's name such as `yes` too), or either per cell.
+    values: Literal["codes", "labels", "auto"] = "codes"
+    # The decimal mark of numbers: "," reads 2,5 as 2.5.
+    decimal: Literal[".", ","] = "."
+
     def column_of(self, name: str) -> str:
         return self.columns.get(name, name)
 

@@ -2,9 +2,12 @@
 
 Answers are drawn within each item's domain for the respondents the routing sends to it
 (the evaluator decides, in questionnaire order), with some blanks and some non-response
-codes where the item allows them. Optional faults — answers off the route and invalid
-values — are listed in a sidecar so a test can check that validation finds them. The same
-seed gives the same export.
+codes where the item allows them. Text answers are taken from the spec's own answer texts.
+Respondents who break a `check` rule (hard or soft) are redrawn, in whole batches, so a
+fault-free export passes its own edit rules; a rule that random answers cannot meet within
+`MAX_ROUNDS` batches is named in `Simulated.notes`. Optional faults — answers off the
+route and invalid values — are listed in a sidecar so a test can check that validation
+finds them. The same seed gives the same export.
 """
 
 from __future__ import annotations
@@ -19,15 +22,15 @@ import pyarrow.csv as pacsv
 
 from logiccheck.atomic import atomic_write
 from logiccheck.data.evaluate import Evaluator
-from logiccheck.data.frame import OK, Cells, NamePlan, plan_layout
+from logiccheck.data.frame import OK, Cells, Layout, NamePlan, plan_layout
 from logiccheck.data.mapping import DataMapping
 from logiccheck.model.questionnaire import Entry, Questionnaire
 
-WORDS = ["more docks", "cheaper passes", "better app", "safer lanes", "longer hours", "newer bikes", "none"]
 BLANK_SHARE = 0.04  # share of due, non-required items left blank
 NONRESPONSE_SHARE = 0.03  # share of due answers that are a non-response code, where allowed
 OPTION_SHARE = 0.35  # chance each multi option is chosen
 SECONDS_PER_ITEM = 10.0  # when an item gives no `seconds` estimate
+MAX_ROUNDS = 20  # batches drawn to replace respondents who break a check rule
 
 
 @dataclass
@@ -36,6 +39,28 @@ class Simulated:
 
     table: pa.Table
     faults: list[tuple[int, str, str, str]] = field(default_factory=list)  # (row 1-based, id, item, fault)
+    notes: list[str] = field(default_factory=list)  # e.g. a check rule random answers could not meet
+
+
+def answer_texts(q: Questionnaire) -> list[str]:
+    """Texts a simulated open answer is drawn from: the spec's own answer texts (every
+    code list's option texts, in spec order), else its item texts."""
+    out: dict[str, None] = {}
+    lists = list(q.codes.values())
+    for e in q.items():
+        inline = getattr(e.stmt, "type", None)
+        if inline is not None and inline.inline_codes is not None:
+            lists.append(inline.inline_codes)
+    for codes in lists:
+        for option in codes.options:
+            if option.text.strip():
+                out.setdefault(option.text.strip())
+    if not out:
+        for e in q.items():
+            text = getattr(e.stmt, "text", "")
+            if text.strip():
+                out.setdefault(text.strip())
+    return list(out) or ["-"]
 
 
 def _column_names(plan: NamePlan) -> list[str]:
@@ -43,8 +68,10 @@ def _column_names(plan: NamePlan) -> list[str]:
 
 
 class _Drawer:
-    def __init__(self, q: Questionnaire, plans: dict[str, NamePlan], rows: int, rng: np.random.Generator) -> None:
+    def __init__(self, q: Questionnaire, plans: dict[str, NamePlan], rows: int, rng: np.random.Generator,
+                 texts: list[str]) -> None:
         self.q, self.plans, self.rows, self.rng = q, plans, rows, rng
+        self.texts = np.array(texts, dtype=object)
         self.out: dict[str, np.ndarray] = {}  # column -> float64 (NaN blank) or object (text)
         self.nr = np.array([o.value for o in q.nonresponse], dtype=np.float64)
 
@@ -84,7 +111,7 @@ class _Drawer:
                 self.out[col] = np.where(present, chosen[:, j].astype(np.float64), np.nan)
             return Cells(plan, present, present.copy(), reason, chosen=chosen)
         if plan.kind == "text":
-            words = np.array(WORDS, dtype=object)[rng.integers(0, len(WORDS), size=n)]
+            words = self.texts[rng.integers(0, len(self.texts), size=n)]
             self.out[plan.columns[0]] = np.where(present, words, None)
             return Cells(plan, present, present.copy(), reason)
         value = np.where(present, self.values(plan, n), np.nan)
@@ -107,22 +134,24 @@ def simulate(
     for plan in layout.plans.values():
         everything += plan.columns
     layout = plan_layout(q, mapping, [mapping.id, *everything, mapping.duration])
-    drawer = _Drawer(q, layout.plans, rows, rng)
-    state = Evaluator(q, layout).run({}, rows, supply=drawer)
+    texts = answer_texts(q)
+    out, due, notes = _draw_passing(q, layout, rows, rng, texts, everything)
+    drawer = _Drawer(q, layout.plans, rows, rng, texts)
+    drawer.out = out
     ids = np.arange(1, rows + 1)
     # Interview length: each due item's time estimate, with respondent-level noise.
     seconds = np.zeros(rows)
     for e in q.items():
-        due = state.env.due.get(e.name)
-        if due is not None:
-            seconds += due * (e.stmt.flags.seconds or SECONDS_PER_ITEM)
+        item_due = due.get(e.name)
+        if item_due is not None:
+            seconds += item_due * (e.stmt.flags.seconds or SECONDS_PER_ITEM)
     duration = np.round(seconds * rng.lognormal(0.0, 0.35, size=rows) + 20)
-    planted = _plant(q, layout.plans, drawer, state.env.due, rows, faults, rng) if faults > 0 else []
+    planted = _plant(q, layout.plans, drawer, due, rows, faults, rng) if faults > 0 else []
     cols: dict[str, pa.Array] = {mapping.id: pa.array(ids, pa.int64())}
-    texts = {col for col, fault, _ in planted if fault == "not-a-number"}
+    bad_texts = {col for col, fault, _ in planted if fault == "not-a-number"}
     for col in everything:
         data = drawer.out.get(col)
-        if data is None:
+        if data is None or (data.dtype == object and not any(v is not None for v in data)):
             cols[col] = pa.nulls(rows, pa.string())
         elif data.dtype == object:
             cols[col] = pa.array(data.tolist(), pa.string())
@@ -130,12 +159,69 @@ def simulate(
             plan_integer = not any(p.kind == "value" and not p.integer and col in p.columns for p in layout.plans.values())
             arr = pa.array(data, pa.float64(), from_pandas=True)
             cols[col] = pc.cast(arr, pa.int64()) if plan_integer else arr
-        if col in texts:
+        if col in bad_texts:
             cols[col] = _with_text_faults(cols[col], [(r, t) for c, t, r in planted if c == col and t == "not-a-number"])
     cols[mapping.duration] = pa.array(duration.astype(np.int64))
     table = pa.table(cols)
     found = [(r + 1, str(r + 1), item, fault) for item, fault, r in _fault_rows(planted, layout.plans)]
-    return Simulated(table, sorted(found))
+    return Simulated(table, sorted(found), notes)
+
+
+def _draw_passing(
+    q: Questionnaire, layout: Layout, rows: int, rng: np.random.Generator, texts: list[str], columns: list[str]
+) -> tuple[dict[str, np.ndarray], dict[str, np.ndarray], list[str]]:
+    """Draw respondents in batches, keeping those who pass every check rule, until there
+    are `rows`; then fill any shortfall with the last failures (named in the notes).
+    Returns (column -> cells, item -> due, notes)."""
+    kept: list[tuple[dict[str, np.ndarray], dict[str, np.ndarray]]] = []
+    spare: tuple[dict[str, np.ndarray], dict[str, np.ndarray]] | None = None
+    have, batch, failing = 0, rows, np.zeros(0, dtype=bool)
+    fail_names: dict[str, np.ndarray] = {}
+    for _ in range(MAX_ROUNDS):
+        drawer = _Drawer(q, layout.plans, batch, rng, texts)
+        state = Evaluator(q, layout).run({}, batch, supply=drawer)
+        failing = np.zeros(batch, dtype=bool)
+        for fails in state.check_fails.values():
+            failing |= fails
+        fail_names = state.check_fails
+        cells = {col: drawer.out[col] if col in drawer.out else _blank(batch) for col in columns}
+        due = {name: np.asarray(d, dtype=bool) for name, d in state.env.due.items()}
+        good = np.flatnonzero(~failing)[: rows - have]
+        kept.append(_take((cells, due), good))
+        have += good.size
+        spare = _take((cells, due), np.flatnonzero(failing))
+        if have >= rows:
+            break
+        # The next batch is sized by the pass rate seen so far, with some to spare.
+        rate = max(good.size / max(batch, 1), 0.02)
+        batch = min(int((rows - have) / rate * 1.25) + 16, 50 * rows + 100)
+    notes: list[str] = []
+    if have < rows and spare is not None:
+        short = rows - have
+        kept.append(_take(spare, np.arange(min(short, _length(spare[0])))))
+        hard = sorted(name for name, fails in fail_names.items() if fails.any())
+        notes.append(f"{short} respondent(s) still break check rule(s) {', '.join(hard)} after {MAX_ROUNDS} "
+                     "batches of random answers; they are kept as drawn")
+    cells = {col: np.concatenate([part[0][col] for part in kept])[:rows] for col in columns}
+    names = set().union(*(part[1] for part in kept)) if kept else set()
+    due = {name: np.concatenate([part[1].get(name, np.zeros(_length(part[0]), dtype=bool)) for part in kept])[:rows]
+           for name in sorted(names)}
+    return cells, due, notes
+
+
+def _blank(n: int) -> np.ndarray:
+    """A column the evaluator never asked the drawer for: no values."""
+    return np.full(n, None, dtype=object)
+
+
+def _length(cells: dict[str, np.ndarray]) -> int:
+    return next((len(v) for v in cells.values()), 0)
+
+
+def _take(part: tuple[dict[str, np.ndarray], dict[str, np.ndarray]], rows: np.ndarray
+          ) -> tuple[dict[str, np.ndarray], dict[str, np.ndarray]]:
+    cells, due = part
+    return {k: v[rows] for k, v in cells.items()}, {k: v[rows] for k, v in due.items()}
 
 
 def _with_text_faults(arr: pa.Array, cells: list[tuple[int, str]]) -> pa.Array:
@@ -186,7 +272,7 @@ def _plant(
                     drawer.out[c][row] = 1.0 if jj == j else 0.0
                 out.append((col, "out-of-path", row))
             elif plan.kind == "text":
-                drawer.out[col][row] = WORDS[0]
+                drawer.out[col][row] = str(drawer.texts[0])
                 out.append((col, "out-of-path", row))
             else:
                 drawer.out[col][row] = float(drawer.values(plan, 1)[0])

@@ -17,12 +17,14 @@ from logiccheck.data.dispositions import answered_share, default_dispositions, t
 from logiccheck.data.evaluate import ChunkState, Evaluator, reads_of
 from logiccheck.data.findings import FindingBlock
 from logiccheck.data.frame import (
+    NOT_A_LABEL,
     REASON_TEXT,
     Cells,
     Layout,
     NamePlan,
     Verdicts,
     cell_texts,
+    label_hint,
     parse_numbers,
     plan_layout,
     type_cells,
@@ -449,7 +451,10 @@ class Validator:
                 rows = np.flatnonzero(bad & (c.reason == reason))
                 vals = cell_texts(table, plan, rows, self.mapping)
                 msg = f"`{item}` = {{value}} {REASON_TEXT[reason]}{self._allowed(plan)}"
-                out.append(FindingBlock(INVALID_VALUE.name, INVALID_VALUE.severity, item, msg, rows + offset, ids[rows], vals))
+                block = FindingBlock(INVALID_VALUE.name, INVALID_VALUE.severity, item, msg, rows + offset, ids[rows], vals)
+                if reason == NOT_A_LABEL:
+                    block.messages = [msg.replace("{value}", v) + label_hint(plan, v) for v in vals]
+                out.append(block)
         judged = item not in self.unjudged
         blocked = state.blocked.get(item) if judged else None
         if blocked is not None:

@@ -51,7 +51,9 @@ class Queries:
         if subjects is None:
             return list(self.enc.conjuncts)
         out: list[Conjunct] = []
-        for subject in subjects:
+        # Sorted: subjects often come as a set, and the order constraints are asserted
+        # in steers which model z3 finds, so set order would change witnesses per run.
+        for subject in sorted(s for s in subjects if s is not None):
             out.extend(self.by_subject.get(subject, ()))
         return out
 

@@ -1,11 +1,15 @@
-"""Locate and load the grammar, once per process."""
+"""Locate and load the grammar; build the parser once per process and keep it on disk between runs."""
 
 from __future__ import annotations
 
 import functools
+import hashlib
+import os
+import sys
 from importlib import resources
 from pathlib import Path
 
+import lark
 from lark import Lark
 from lark.indenter import Indenter
 
@@ -54,15 +58,51 @@ def grammar_text() -> str:
     return Path(grammar_location()).read_text(encoding="utf-8")
 
 
+# The options the parser is built with; part of the cache file's name.
+PARSER_OPTIONS: dict[str, object] = {
+    "parser": "lalr",
+    "lexer": "contextual",
+    "strict": True,
+    "propagate_positions": True,
+    "maybe_placeholders": True,
+}
+
+
+def cache_folder() -> Path:
+    """Where the built parser is kept between runs: `LOGICCHECK_CACHE_DIR`, else the
+    user's cache folder (`XDG_CACHE_HOME`, `LOCALAPPDATA` on Windows, `~/.cache`)."""
+    explicit = os.environ.get("LOGICCHECK_CACHE_DIR")
+    if explicit:
+        return Path(explicit)
+    base = os.environ.get("XDG_CACHE_HOME") or (os.environ.get("LOCALAPPDATA") if os.name == "nt" else None)
+    return (Path(base) if base else Path.home() / ".cache") / "logiccheck"
+
+
+def cache_file(text: str) -> Path:
+    """The cache file for this grammar, lark version, Python version and options: a
+    changed grammar gets a new file, so a file once written is never rewritten."""
+    key = "\0".join([text, lark.__version__, repr(sys.version_info[:2]), repr(sorted(PARSER_OPTIONS.items()))])
+    return cache_folder() / f"qlc-parser-{hashlib.sha256(key.encode()).hexdigest()[:20]}.lark"
+
+
+def _build(text: str, cache: str | bool) -> Lark:
+    return Lark(text, cache=cache, postlex=SpecIndenter(), **PARSER_OPTIONS)  # type: ignore[arg-type]
+
+
 @functools.lru_cache(maxsize=1)
 def spec_parser() -> Lark:
-    """The LALR parser, built once; later calls reuse it."""
-    return Lark(
-        grammar_text(),
-        parser="lalr",
-        lexer="contextual",
-        strict=True,
-        propagate_positions=True,
-        maybe_placeholders=True,
-        postlex=SpecIndenter(),
-    )
+    """The LALR parser, built once per process and kept on disk between runs (lark's
+    own cache); without a writable cache folder it is built each run, silently."""
+    text = grammar_text()
+    target = cache_file(text)
+    if not target.is_file():
+        try:
+            target.parent.mkdir(parents=True, exist_ok=True)
+        except OSError:
+            return _build(text, False)
+        if not os.access(target.parent, os.W_OK):
+            return _build(text, False)
+    # lark hashes its options (this path included) into the file and rebuilds on any
+    # mismatch or unreadable file, so a half-written file from a concurrent first run
+    # costs a rebuild, never a wrong parser.
+    return _build(text, str(target))

@@ -12,6 +12,7 @@ from logiccheck.checks.registry import register
 from logiccheck.checks.routing.common import analysis, explain, target
 from logiccheck.diagnostics import Diagnostic
 from logiccheck.logic.routing import Statement
+from logiccheck.model import nodes as n
 
 READING_WORDS = {
     "blank": "a blank counts as a value unequal to every code",
@@ -128,7 +129,7 @@ def missing_sensitive(ctx: LintContext) -> Iterable[Diagnostic]:
         other_word = "does not hold" if holds else "holds"
         message = (
             f"`{text}` {ours_word} for this respondent, but {other_word} if {READING_WORDS[reading]}; "
-            "make the intent explicit (`answered(...)`, `strict`, `in (...)`)"
+            f"{advice(ctx, st, reading)}"
         )
         notes = [f"it also differs if {READING_WORDS[r]}" for r in hits[1:]]
         yield ctx.diag(
@@ -139,6 +140,64 @@ def missing_sensitive(ctx: LintContext) -> Iterable[Diagnostic]:
             witness=a.enc.witness(model, a.cone([st.expr], st.entry)),
             notes=notes,
         )
+
+
+def advice(ctx: LintContext, st: Statement, reading: str) -> str:
+    """What to write so the condition reads the same either way. A blank is ruled out by
+    `answered(x)`; a non-response code is not (it is an answer), so for that reading the
+    advice is a range (`x in LO..HI`) or `strict`."""
+    q = ctx.q
+    names: list[str] = []
+    for node in n.walk(st.expr):
+        name = node.name if isinstance(node, n.Ref) else None
+        target_entry = q.symbols.get(name) if name else None
+        if target_entry is not None and target_entry.kind == "item" and name not in names:
+            names.append(name)  # type: ignore[arg-type]
+    if reading == "blank":
+        first = names[0] if names else "..."
+        return f"make the intent explicit: `answered({first}) and ...`"
+    coded = [x for x in names if q.allows_nonresponse(q.symbols[x].stmt)]
+    first = coded[0] if coded else (names[0] if names else "...")
+    spec = q.symbols[first].stmt if first in q.symbols else None
+    kind = getattr(getattr(spec, "type", None), "kind", None)
+    if kind in ("number", "decimal") and spec.type.lo is not None and spec.type.hi is not None:  # type: ignore[union-attr]
+        rewrite = _as_range(ctx, st, first, spec.type.lo, spec.type.hi, kind == "number")  # type: ignore[union-attr]
+        if rewrite is not None:
+            return f"make the intent explicit: write {rewrite} or mark `{first}` `strict`"
+        lo, hi = _num(spec.type.lo), _num(spec.type.hi)  # type: ignore[union-attr]
+        return (f"make the intent explicit: compare with a range (`{first} in LO..HI`, inside {lo}..{hi}) "
+                f"or mark `{first}` `strict`")
+    return f"make the intent explicit: list the codes (`{first} in (...)`) or mark `{first}` `strict`"
+
+
+def _as_range(ctx: LintContext, st: Statement, name: str, lo: float, hi: float, whole: bool) -> str | None:
+    """The first ordering comparison of `name` with a number, as a range: a range is
+    false (not unknown) for a non-response code under both readings."""
+    for node in n.walk(st.expr):
+        if not isinstance(node, n.Compare) or node.op not in ("<", "<=", ">", ">="):
+            continue
+        left, right, op = node.left, node.right, node.op
+        if isinstance(right, n.Ref) and isinstance(left, n.Num):
+            left, right, op = right, left, {"<": ">", "<=": ">=", ">": "<", ">=": "<="}[op]
+        if not (isinstance(left, n.Ref) and left.name == name and isinstance(right, n.Num)):
+            continue
+        k, step = float(right.value), (1.0 if whole else 0.0)
+        if op in (">", ">=") and (op == ">=" or whole):
+            low, high = (k if op == ">=" else k + step), hi
+        elif op in ("<", "<=") and (op == "<=" or whole):
+            low, high = lo, (k if op == "<=" else k - step)
+        else:
+            return None
+        return f"`{ctx_source(ctx, node)}` as `{name} in {_num(low)}..{_num(high)}`"
+    return None
+
+
+def ctx_source(ctx: LintContext, node: n.Node) -> str:
+    return analysis(ctx).enc.source(node.span)
+
+
+def _num(x: float) -> str:
+    return str(int(x)) if float(x).is_integer() else str(x)
 
 
 @register(

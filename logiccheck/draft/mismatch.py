@@ -1,0 +1,133 @@
+"""`routing-mismatch`: an item whose answers follow another condition far better than the
+spec's own, which says the spec is wrong rather than thousands of respondents."""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+
+import numpy as np
+
+from logiccheck.checks.data_context import DataContext
+from logiccheck.checks.registry import data_check
+from logiccheck.data import causes
+from logiccheck.data.findings import Hits
+from logiccheck.draft.mine import Mined, Var, mine
+
+# "Far better": the mined condition must explain at least this share of respondents more
+# than the spec's own and leave at most half of its errors. Common practice, no source.
+MISMATCH_GAIN = 0.02
+MISMATCH_ROWS = 10
+MISMATCH_ERRORS = 0.5
+
+
+def context_vars(ctx: DataContext) -> list[Var]:
+    """The context's items as the miner sees them. A value counts only where it was due and
+    valid, as the routing reads it (an answer off the route opens nothing later)."""
+    q = ctx.q
+    out: list[Var] = []
+    for j, name in enumerate(ctx.items):
+        stmt = q.symbols[name].stmt
+        usable = ctx.due[:, j] & ctx.valid[:, j]
+        kind = stmt.type.kind
+        codes = q.item_codes(stmt)
+        if kind == "single" and codes is not None:
+            value = np.where(usable, ctx.value_of(name), np.nan)
+            opts = sorted(o.value for o in codes.options)
+            nr = [o for o in q.nonresponse] if q.allows_nonresponse(stmt) else []
+            labels = {o.value: o.label for o in [*codes.options, *nr]}
+            out.append(Var(name, "coded", usable, value, ctx.nonresponse[:, j] & usable, options=opts,
+                           nr_codes=[o.value for o in nr], labels=labels, position=j))
+        elif kind in ("number", "decimal"):
+            value = np.where(usable, ctx.value_of(name), np.nan)
+            out.append(Var(name, "number", usable, value, ctx.nonresponse[:, j] & usable, integer=kind == "number",
+                           position=j))
+        elif kind == "multi" and codes is not None:
+            opts = sorted(o.value for o in codes.options)
+            chosen = np.column_stack([usable & (ctx.value_of(f"{name}_{v}") == 1) for v in opts]) if opts else None
+            out.append(Var(name, "multi", usable, chosen=chosen, options=opts,
+                           labels={o.value: o.label for o in codes.options}, position=j))
+        else:
+            out.append(Var(name, "text", usable, position=j))
+    return out
+
+
+def own_condition(ctx: DataContext, name: str) -> str:
+    entry = ctx.q.symbols[name]
+    parts = [causes.source_of(ctx.q, expr) for _, expr in entry.context if expr is not None]
+    if entry.own is not None:
+        parts.append(causes.source_of(ctx.q, entry.own))
+    parts = [p for p in parts if p]
+    return " and ".join(f"({p})" if " or " in p and len(parts) > 1 else p for p in parts)
+
+
+def alive_before(ctx: DataContext, name: str) -> np.ndarray:
+    """Respondents no stop ended before the item."""
+    q = ctx.q
+    at = q.symbols[name].index
+    index = {e.name: e.index for e in q.entries if e.kind == "stop"}
+    stop_at = np.array([index.get(s, 1 << 30) if s else 1 << 30 for s in ctx.stop.tolist()], dtype=np.int64)
+    return stop_at > at
+
+
+def compare(ctx: DataContext, vars_: list[Var], j: int) -> tuple[Mined, int] | None:
+    """The best mined condition for item `j` and how many respondents its own routing
+    explains; None when nobody answered it."""
+    answered = ctx.has_value[:, j]
+    if not answered.any():
+        return None
+    own = int((ctx.due[:, j] == answered).sum())
+    mined = mine(vars_[:j], answered, alive_before(ctx, ctx.items[j]))
+    return mined, own
+
+
+@data_check(
+    "routing-mismatch",
+    severity="warning",
+    stage="data",
+    summary="An item's answers follow another condition far better than the spec's own",
+    what=(
+        "An item whose answered-or-blank pattern is explained by a simple condition over earlier items (an "
+        "equality or set of codes, a threshold, `has` on an option, or two of these) far better than by the "
+        "routing the spec gives it. The finding names that condition as a suggestion, with the share of "
+        "respondents each explains."
+    ),
+    why=(
+        "When thousands of respondents break one rule in the same way, the spec is more likely wrong than the "
+        "data: a condition pointing at the wrong gate, or routing changed during fieldwork. Fix the spec, and "
+        "the off-path and missing findings it caused disappear."
+    ),
+    bad=(
+        "# The fielded survey asked `which` of those who said yes to `rides`,\n"
+        "# but the spec points at `drives`:\n"
+        "which: multi modes \"Which did you use?\" when drives = yes"
+    ),
+    good="which: multi modes \"Which did you use?\" when rides = yes",
+)
+def routing_mismatch(ctx: DataContext) -> Iterator[Hits]:
+    n = ctx.n
+    if n == 0:
+        return
+    vars_ = context_vars(ctx)
+    by_name = {v.name: v for v in vars_}
+    none = np.array([], dtype=np.int64)
+    for j, name in enumerate(ctx.items):
+        got = compare(ctx, vars_, j)
+        if got is None:
+            continue
+        mined, own = got
+        if not mined.condition.literals:
+            continue
+        gain = mined.explained - own
+        if gain < max(MISMATCH_ROWS, MISMATCH_GAIN * n) or (n - mined.explained) > MISMATCH_ERRORS * (n - own):
+            continue
+        spec = own_condition(ctx, name)
+        said = f"its condition `{spec}`" if spec else "the spec, which asks it of everyone,"
+        yield Hits(
+            rows=none,
+            message=(
+                f"`{name}` is answered as if asked `when {mined.condition.text(by_name)}` "
+                f"({100 * mined.explained / n:.1f} % of respondents fit that), far better than {said} "
+                f"({100 * own / n:.1f} %); check the spec's routing before the data"
+            ),
+            item=name,
+        )
