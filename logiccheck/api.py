@@ -70,8 +70,29 @@ class Validation:
         return dict(self.data.dispositions)
 
     @property
+    def representativeness(self) -> pd.DataFrame:
+        """With margins: per category, the sample share against the population share."""
+        return pd.DataFrame(self.data.sections.get("representativeness", []))
+
+    @property
     def respondents(self) -> int | None:
         return self.data.respondents
+
+    @property
+    def scales(self) -> pd.DataFrame:
+        """One row per scale item: scale, item, reversed, alpha, alpha_ci_low/high, n,
+        alpha_if_deleted, item_total, scored, mean, sd (the scale's figures repeat per item)."""
+        rows = []
+        for s in self.data.scales:
+            ci = s.get("alpha_ci") or [None, None]
+            for item in s["items"]:
+                rows.append({"scale": s["scale"], "item": item, "reversed": item in s.get("reversed", []),
+                             "alpha": s["alpha"], "alpha_ci_low": ci[0], "alpha_ci_high": ci[1], "n": s["n"],
+                             "alpha_if_deleted": s["alpha_if_deleted"].get(item), "item_total": s["item_total"].get(item),
+                             "scored": s["scored"], "mean": s["mean"], "sd": s["sd"]})
+        columns = ["scale", "item", "reversed", "alpha", "alpha_ci_low", "alpha_ci_high", "n", "alpha_if_deleted",
+                   "item_total", "scored", "mean", "sd"]
+        return pd.DataFrame(rows, columns=columns)
 
     def summary(self) -> dict[str, Any]:
         return {
@@ -189,16 +210,18 @@ class Survey:
         frame: str | Path | None = None,
         settings: Mapping[str, Any] | None = None,
         keep_cells: bool = False,
+        margins: str | Path | None = None,
     ) -> Validation:
         """Run the data checks on an export (a file path or a DataFrame).
 
         `mapping` is a mapping TOML path or a `logiccheck.data.DataMapping`; `frame` a
-        sample-frame CSV; `keep_cells=True` keeps the respondent × item route arrays on
+        sample-frame CSV; `margins` a margins TOML (`.representativeness`: the sample
+        against the population per category); `keep_cells=True` keeps the respondent × item route arrays on
         `.raw` (e.g. `.raw.item_states("trips")`). Runs the same pipeline as the commands;
         bad input raises one of `logiccheck.pipeline.INPUT_ERRORS` (e.g. `DataReadError`).
         """
         pipeline = importlib.import_module("logiccheck.pipeline")  # pandas-heavy: load on first use
-        options = pipeline.RunOptions(mapping=mapping, frame=frame, config=self.config())
+        options = pipeline.RunOptions(mapping=mapping, frame=frame, config=self.config(), margins=margins)
         raw = pipeline.run_pipeline(self.loaded, data, options)
         if not keep_cells:
             raw.due = raw.has_value = raw.valid = raw.frame = None
@@ -223,12 +246,15 @@ class Survey:
         policy: str | Path | Mapping[str, Any] | Any | None = None,
         out: str | Path | None = None,
         frame: str | Path | None = None,
+        margins: str | Path | None = None,
     ) -> Cleaning:
         """Apply a cleaning policy to an export; the cleaned frame and audit as DataFrames.
 
         `policy`: a policy TOML path, a `[clean]` table as a dict, a `CleanPolicy`, or None
         for the configuration found above the spec. `out`: a folder for the cleaned file,
-        audit and summary (None: kept in memory only). The input is never modified.
+        audit and summary (None: kept in memory only). `margins`: a margins TOML; the
+        cleaned frame gains a raked `weight` column and `.summary["weights"]` its
+        diagnostics. The input is never modified.
         """
         run = importlib.import_module("logiccheck.clean.run")
         policies = importlib.import_module("logiccheck.clean.policy")
@@ -244,7 +270,7 @@ class Survey:
             chosen = policies.CleanPolicy.model_validate(dict(policy))
         else:
             chosen = policy
-        options = pipeline.RunOptions(frame=frame, config=config, quality=quality)
+        options = pipeline.RunOptions(frame=frame, config=config, quality=quality, margins=margins)
         with tempfile.TemporaryDirectory(prefix="logiccheck-clean-") as tmp:
             export = Path(tmp) / "export.csv"
             if isinstance(data, pd.DataFrame):

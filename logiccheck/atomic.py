@@ -11,15 +11,19 @@ from pathlib import Path
 from typing import Any, TextIO
 
 
-def _file_mode(path: Path) -> int:
-    """Keep an existing file's mode; a new file gets the usual mode under the umask
-    (a temporary file is created private, which an output should not stay)."""
+def output_mode(path: Path, new: int = 0o666, bits: int = 0o777) -> int:
+    """Keep an existing path's mode; a new one gets `new` under the umask (temporary
+    files and folders are created private, which an output should not stay)."""
     try:
-        return path.stat().st_mode & 0o777
+        return path.stat().st_mode & bits
     except OSError:
         mask = os.umask(0)
         os.umask(mask)
-        return 0o666 & ~mask
+        return new & ~mask
+
+
+def _file_mode(path: Path) -> int:
+    return output_mode(path)
 
 
 @contextmanager

@@ -53,7 +53,7 @@ class ConfigError(Exception):
 class Config(BaseModel):
     """The validated configuration; `source` is the file it came from (None: defaults)."""
 
-    model_config = ConfigDict(extra="forbid", populate_by_name=True)
+    model_config = ConfigDict(extra="forbid", populate_by_name=True, strict=True)
 
     fail_on: Literal["error", "warning", "info"] | None = Field(default=None, alias="fail-on")
     format: str | None = None
@@ -113,24 +113,39 @@ def find_config(start: str | Path) -> Path | None:
     return None
 
 
-def _read_toml(path: Path) -> dict[str, Any]:
+def read_toml(path: Path, what: str = "configuration", error: type[Exception] | None = None) -> dict[str, Any]:
+    """A TOML file as a dict; a missing, unreadable or malformed file raises `error`
+    (default `ConfigError`) with one line naming the file and `what` it should be."""
+    fail: type[Exception] = error or ConfigError
     try:
         raw = path.read_bytes()
+    except FileNotFoundError:
+        raise fail(f"{path}: no such {what} file") from None
     except OSError as err:
-        raise ConfigError(f"{path}: cannot read the configuration ({err.strerror})") from None
+        raise fail(f"{path}: cannot read the {what} ({err.strerror})") from None
     try:
         return tomllib.loads(raw.decode("utf-8"))
     except UnicodeDecodeError:
-        raise ConfigError(f"{path}: not UTF-8 text; save the configuration as UTF-8") from None
+        raise fail(f"{path}: not UTF-8 text; save the {what} as UTF-8") from None
     except tomllib.TOMLDecodeError as err:
-        raise ConfigError(f"{path}: not valid TOML ({err})") from None
+        raise fail(f"{path}: not valid TOML ({err})") from None
+
+
 
 
 def _pyproject_table(path: Path) -> dict[str, Any] | None:
     try:
-        data = _read_toml(path)
+        data = read_toml(path)
     except ConfigError:
-        return None  # someone else's broken pyproject is not our configuration
+        # Someone else's broken pyproject is not our configuration; one that names our
+        # table is, and stops the run as a broken logiccheck.toml does.
+        try:
+            mentions = b"tool.logiccheck" in path.read_bytes()
+        except OSError:
+            mentions = False
+        if mentions:
+            raise
+        return None
     table = data.get("tool", {}).get("logiccheck") if isinstance(data.get("tool"), dict) else None
     return table if isinstance(table, dict) else None
 
@@ -167,12 +182,11 @@ def parse_config(table: dict[str, Any], where: str, checks: list[str] | None = N
             f"{where}: key `format`: {fmt!r} is not a format{_did_you_mean(str(fmt), list(FORMATS))} "
             f"(allowed: {', '.join(FORMATS)})"
         )
-    if checks is None:
-        from logiccheck.checks.registry import all_checks
+    from logiccheck.checks.registry import all_checks, is_check
 
-        checks = sorted(all_checks())
     for name, value in table.get("checks", {}).items():
-        if name not in checks:
+        if (name not in checks) if checks is not None else not is_check(name):
+            checks = checks if checks is not None else sorted(all_checks())
             raise ConfigError(
                 f"{where}: key `checks.{name}`: no check is called `{name}`{_did_you_mean(name, checks)} "
                 "(`logiccheck explain` lists them)"
@@ -199,12 +213,12 @@ def load_config(path: str | Path, checks: list[str] | None = None) -> Config:
     if not path.is_file():
         raise ConfigError(f"{path}: no such configuration file; give a logiccheck.toml or pyproject.toml")
     if path.name == PYPROJECT:
-        table = _read_toml(path).get("tool", {}).get("logiccheck")
+        table = read_toml(path).get("tool", {}).get("logiccheck")
         if not isinstance(table, dict):
             raise ConfigError(f"{path}: has no [tool.logiccheck] table")
         where = f"{path} [tool.logiccheck]"
     else:
-        table = _read_toml(path)
+        table = read_toml(path)
         where = str(path)
     config = parse_config(table, where, checks)
     config.source = str(path)

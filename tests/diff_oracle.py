@@ -160,7 +160,9 @@ def parse_witness(
         elif kind == "multi":
             out[name] = set(text.split(", "))
         elif kind in ("number", "decimal"):
-            out[name] = float(text)
+            # A non-response answer is given by its label (its value differs by version).
+            codes = {o.label: o.value for o in q.nonresponse}
+            out[name] = float(codes[text]) if text in codes else float(text)
         else:
             out[name] = True
     return out

@@ -1,5 +1,6 @@
 """Every data check has a fixture folder (tests/data_checks/<check>/) run through the
 pipeline: its findings of that check must be exactly the expected ones (check, row, item).
+A `frame.csv` in the folder is passed as the sample frame.
 
 Quality checks join this layout as they become `@data_check` units; a data-stage check,
 or any check with a runner, without a folder fails the coverage test."""
@@ -37,9 +38,12 @@ def test_every_data_check_has_a_fixture_folder() -> None:
 def test_fixture(check: str) -> None:
     folder = FIXTURES / check
     mapping = folder / "mapping.toml"
+    margins = folder / "margins.toml"
+    frame = folder / "frame.csv"  # the sample frame, for the checks that read one
     result = run_pipeline(
         load_file(folder / "spec.qlc"), folder / "export.csv",
-        RunOptions(mapping=mapping if mapping.is_file() else None),
+        RunOptions(mapping=mapping if mapping.is_file() else None, frame=frame if frame.is_file() else None,
+                   margins=margins if margins.is_file() else None),
     )
     got = sorted(
         ((f.check, f.row or 0, f.item or "") for f in result.findings if f.check == check),

@@ -212,3 +212,70 @@ def test_markdown_caps_rows_but_json_keeps_all() -> None:
     md = diff_markdown(result)
     assert md.count("| 🔴 break |") == MAX_ROWS and "… and 21 more changes" in md
     assert len(result.to_json()["changes"]) == MAX_ROWS + 21
+
+
+@pytest.mark.parametrize(
+    ("old", "new", "expected"),
+    [
+        # A sample variable's answer recoded: the sample file's codes no longer match.
+        ("wave1", "sample_recode", [("recode", "district", "`west` 3 → 4")]),
+        ("wave1", "sample_added", [("sample-added", "visits", "is new"), ("option-added", "district", "`north` = 4")]),
+        ("wave1", "sample_removed", [("sample-removed", "district", "was removed")]),
+        (
+            "wave1",
+            "nonresponse",
+            [
+                ("recode", None, "`dk` 98 → 97"),
+                ("option-reworded", None, '"Prefer not to say" is now "Would rather not say"'),
+                ("option-added", None, "`na` = 96"),
+            ],
+        ),
+        # Named lists nothing uses are compared under their own names.
+        ("lists_old", "lists_new", [("recode", "spare", "`high` 2 → 3"), ("codes-added", "fresh", "is new"),
+                                    ("codes-removed", "gone", "was removed")]),
+    ],
+)
+def test_sample_variables_answer_lists_and_nonresponse_are_compared(old: str, new: str, expected: list) -> None:
+    _, _, result = _diff(new, old=old)
+    assert [(c.kind, c.item) for c in result.changes] == [(k, i) for k, i, _ in expected]
+    for change, (_, _, words) in zip(result.changes, expected, strict=True):
+        assert words in change.message
+    if new == "nonresponse":
+        assert all(c.details.get("list") == "nonresponse" for c in result.changes)
+    # The JSON form carries the same kinds; a recode is a breaking change.
+    kinds = [c["kind"] for c in result.to_json()["changes"]]
+    assert kinds == [k for k, _, _ in expected]
+    assert all(c.impact == "break" for c in result.changes if c.kind == "recode")
+
+
+def test_a_list_an_item_uses_is_reported_with_the_item_only() -> None:
+    # wave1 → recode moves codes of the `freq` list, which the item `freq` uses: one change.
+    _, _, result = _diff("recode")
+    assert [(c.kind, c.item, c.details.get("list")) for c in result.changes] == [("recode", "freq", "freq")]
+
+
+def test_nonresponse_answers_are_linked_by_label_across_versions() -> None:
+    old_text = (
+        'survey s "S"\ncodes yn\n  yes = 1 "Yes"\n  no  = 2 "No"\nnonresponse\n  dk = 98 "Don\'t know"\n'
+        '  refused = 99 "Refused"\nb: number 0..10 "B?"\nc: text "C?" when b >= 5\ne: text "E?" when b = 98\n'
+    )
+    old = load_text(old_text, "old.qlc").questionnaire
+
+    def kinds(new_text: str) -> list[tuple[str, str | None]]:
+        return _kinds(diff_questionnaires(old, load_text(new_text, "new.qlc").questionnaire))
+
+    # `dk` recoded, the rule following it: only the recode; the rewrite is proved equal.
+    assert kinds(old_text.replace("dk = 98", "dk = 97").replace("b = 98", "b = 97")) == [
+        ("recode", None), ("routing-equivalent", "e")]
+    # `dk` recoded but the rule still reads 98: whoever says "don't know" is no longer
+    # asked `e`, and the independent router agrees with the witness.
+    new_text = old_text.replace("dk = 98", "dk = 97")
+    new = load_text(new_text, "new.qlc").questionnaire
+    result = diff_questionnaires(old, new)
+    assert _kinds(result) == [("recode", None), ("routing-changed", "e")]
+    change = result.changes[1]
+    a = Router(old, parse_witness(old, change.witness, side="old")).asked["e"]
+    b = Router(new, parse_witness(new, change.witness, side="new")).asked["e"]
+    assert (a, b) == (True, False) and change.asked_in == "old"
+    # A non-response code dropped that no condition reads: no routing change.
+    assert kinds(old_text.replace('  refused = 99 "Refused"\n', "")) == [("option-removed", None)]

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import shlex
+from pathlib import Path
 
 import yaml
 from click.testing import CliRunner
@@ -16,16 +17,22 @@ def _command_works(words: list[str], spec: str) -> int:
     return CliRunner().invoke(cli, [*words[1:], spec]).exit_code
 
 
-def test_pre_commit_hooks_run_our_lint() -> None:
+def test_pre_commit_hooks_run_our_lint(tmp_path: Path) -> None:
     hooks = yaml.safe_load((ROOT / ".pre-commit-hooks.yaml").read_text())
-    assert {h["id"] for h in hooks} == {"logiccheck-lint", "logiccheck-lint-strict"}
+    assert {h["id"] for h in hooks} == {"logiccheck-lint", "logiccheck-lint-strict", "logiccheck-format"}
     clean = str(ROOT / "tests" / "checks" / "unknown-name" / "good.qlc")
     broken = str(ROOT / "tests" / "checks" / "unknown-name" / "bad.qlc")
+    # The layout hook: a formatted demo spec passes, a carelessly spaced copy fails.
+    formatted = str(ROOT / "specs" / "bikeshare.qlc")
+    messy = tmp_path / "messy.qlc"
+    messy.write_text(Path(formatted).read_text(encoding="utf-8").replace(" = ", "=", 3), encoding="utf-8")
     for hook in hooks:
         assert hook["language"] == "python" and hook["files"] == r"\.qlc$"
         words = shlex.split(hook["entry"])
-        assert _command_works(words, clean) == 0
-        assert _command_works(words, broken) == 1
+        good, bad = (formatted, str(messy)) if hook["id"] == "logiccheck-format" else (clean, broken)
+        assert _command_works(words, good) == 0
+        assert _command_works(words, bad) == 1
+    assert messy.read_text(encoding="utf-8").count(" = ") < Path(formatted).read_text(encoding="utf-8").count(" = ")
 
 
 def test_example_workflow_uses_real_commands() -> None:

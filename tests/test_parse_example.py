@@ -47,6 +47,9 @@ def test_several_syntax_errors_are_reported() -> None:
     assert all(d.check == "syntax-error" for d in loaded.syntax)
 
 
-def test_empty_and_comment_only_files() -> None:
-    assert load_text("", "e.qlc").syntax == []
-    assert load_text("# nothing\n\n", "e.qlc").syntax == []
+def test_empty_and_comment_only_files_are_errors() -> None:
+    # A spec with no statements is never what was meant: it must not lint clean.
+    for text in ("", "# nothing\n\n", "\r\n"):
+        syntax = load_text(text, "e.qlc").syntax
+        assert [(d.check, d.line, d.column) for d in syntax] == [("syntax-error", 1, 1)]
+        assert "empty" in syntax[0].message

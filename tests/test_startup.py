@@ -10,7 +10,6 @@ import sys
 from pathlib import Path
 
 import click
-import pytest
 from click.testing import CliRunner
 
 from logiccheck.cli.main import COMMANDS, cli
@@ -59,9 +58,6 @@ def test_help_imports_no_heavy_library() -> None:
     assert _imported_after(["--help"]) == set()
 
 
-@pytest.mark.xfail(strict=True, reason="the data checks' declarations now live in logiccheck.data.validate, "
-                   "which imports pandas and pyarrow; lint loads them for the check names. Remove this "
-                   "marker once the declarations can be loaded without the data stack.")
 def test_lint_imports_only_what_routing_needs(tmp_path: Path) -> None:
     spec = tmp_path / "tiny.qlc"
     spec.write_text('survey tiny "Tiny"\n\nused: single (yes = 1 "Yes", no = 2 "No") "Used it?"\n'

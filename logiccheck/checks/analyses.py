@@ -30,7 +30,7 @@ class Analysis:
 AnalysisRunner = Callable[["DataContext"], "Analysis | None"]
 
 # Modules whose import registers analyses; loaded on first use.
-ANALYSIS_MODULES: tuple[str, ...] = ()
+ANALYSIS_MODULES: tuple[str, ...] = ("logiccheck.weights.analysis", "logiccheck.scales.checks")
 
 _ANALYSES: dict[str, AnalysisRunner] = {}
 _loaded = False

@@ -21,15 +21,22 @@ Runner = Callable[["LintContext"], Iterable[Diagnostic]]
 # the data runner stamps the name and severity on them.
 DataRunner = Callable[["DataContext"], Iterable["Hits"]]
 
-# Modules whose import registers checks; the registry is filled on first use.
-CHECK_MODULES = (
+# Modules whose import registers checks; the registry is filled on first use. `lint`
+# loads only the spec modules, so it never imports the data stack (pandas, pyarrow).
+SPEC_MODULES = (
     "logiccheck.checks.static",
     "logiccheck.checks.suppress",
     "logiccheck.checks.routing",
+)
+DATA_MODULES = (
     "logiccheck.data.checks",
     "logiccheck.quality.checks",
+    "logiccheck.weights.checks",
     "logiccheck.draft.mismatch",
+    "logiccheck.scales.checks",
 )
+CHECK_MODULES = SPEC_MODULES + DATA_MODULES
+SPEC_STAGES = frozenset({"spec", "routing"})
 
 
 @dataclass(frozen=True)
@@ -50,7 +57,7 @@ class CheckInfo:
 
 
 _REGISTRY: dict[str, CheckInfo] = {}
-_loaded = False
+_loaded: set[str] = set()  # modules imported so far
 
 
 def register(
@@ -124,32 +131,41 @@ def _add(info: CheckInfo) -> None:
     _REGISTRY[info.name] = info
 
 
-def _load() -> None:
-    global _loaded
-    if _loaded:
-        return
-    _loaded = True
-    for module in CHECK_MODULES:
-        importlib.import_module(module)
+def _load(modules: tuple[str, ...] = CHECK_MODULES) -> None:
+    for module in modules:
+        if module not in _loaded:
+            _loaded.add(module)
+            importlib.import_module(module)
 
 
-def all_checks() -> dict[str, CheckInfo]:
-    _load()
-    return dict(_REGISTRY)
+def all_checks(stages: Iterable[str] | None = None) -> dict[str, CheckInfo]:
+    """Every declared check, or those of `stages` (spec stages load no data modules)."""
+    if stages is None:
+        _load()
+        return dict(_REGISTRY)
+    wanted = set(stages)
+    _load(SPEC_MODULES if wanted <= SPEC_STAGES else CHECK_MODULES)
+    return {name: info for name, info in _REGISTRY.items() if info.stage in wanted}
 
 
 def get(name: str) -> CheckInfo | None:
-    _load()
+    """The check called `name`, loading the data modules only when it is not a spec check."""
+    _load(SPEC_MODULES)
+    if name not in _REGISTRY:
+        _load()
     return _REGISTRY.get(name)
+
+
+def is_check(name: str) -> bool:
+    return get(name) is not None
 
 
 def check_info(name: str) -> CheckInfo:
     """The declared check called `name`; an undeclared name is a programming error."""
-    _load()
-    try:
-        return _REGISTRY[name]
-    except KeyError:
-        raise KeyError(f"no check is declared as {name!r}; declare it with register, data_check or describe") from None
+    info = get(name)
+    if info is None:
+        raise KeyError(f"no check is declared as {name!r}; declare it with register, data_check or describe")
+    return info
 
 
 def default_severity(name: str) -> Severity:

@@ -30,13 +30,18 @@ def run_checks(
     disable: Iterable[str] = (),
     severity: dict[str, Severity] | None = None,
     options: dict[str, object] | None = None,
+    shared: dict[str, object] | None = None,
 ) -> list[Diagnostic]:
-    """Syntax diagnostics, then every registered spec check (and routing checks)."""
+    """Syntax diagnostics, then every registered spec check (and routing checks).
+    `shared` receives what the checks leave for each other (the editor server keeps the
+    routing analysis to tell who can reach each statement)."""
     disabled = set(disable)
     overrides = severity or {}
     ctx = LintContext(loaded.questionnaire, loaded.syntax, dict(options or {}))
+    if shared is not None:
+        ctx.shared = shared  # type: ignore[assignment]
     out: list[Diagnostic] = list(loaded.syntax)
-    checks = all_checks()
+    checks = all_checks(STAGE_ORDER)
     stages = STAGE_ORDER if solver else ("spec",)
     for stage in stages:
         for info in checks.values():

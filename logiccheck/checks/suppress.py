@@ -18,7 +18,7 @@ import re
 from collections.abc import Iterable
 from dataclasses import dataclass, field
 
-from logiccheck.checks.registry import all_checks, default_severity, describe
+from logiccheck.checks.registry import all_checks, default_severity, describe, is_check
 from logiccheck.diagnostics import Diagnostic, Span
 from logiccheck.suggest import did_you_mean
 
@@ -133,7 +133,7 @@ def scan(text: str, file: str, known: Iterable[str] | None = None) -> Scan:
             )
             continue
         for check, col in listed:
-            if check in UNSUPPRESSIBLE or check not in names:
+            if check in UNSUPPRESSIBLE or (check not in names and not is_check(check)):
                 tip = did_you_mean(check, names) if check not in UNSUPPRESSIBLE else ""
                 what = "cannot be suppressed" if check in UNSUPPRESSIBLE else "is not a check"
                 out.problems.append(_bad(file, number, col, col + len(check), f"`{check}` {what}{tip}"))

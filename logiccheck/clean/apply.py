@@ -3,12 +3,14 @@
 from __future__ import annotations
 
 import json
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
 
 from logiccheck.clean.policy import CleanPolicy
+from logiccheck.clean.sheet import ESCAPE_REASON, SHEET_ESCAPE, escape, needs_escape_any
 from logiccheck.data.validate import AFTER_STOP, CHECK_FAILED, INVALID_VALUE, OUT_OF_PATH
 from logiccheck.model.questionnaire import Questionnaire
 from logiccheck.pipeline.run import PipelineResult
@@ -133,6 +135,8 @@ def apply_policy(
                     blanked[check] = blanked.get(check, 0) + 1
                 if len(rows):
                     cleaned.loc[cleaned.index[rows], col] = ""
+    if policy.sheet_safe:
+        records += _escape_records(cleaned, kept, state.ids)
     removed: dict[str, int] = {}
     for r, (check, why) in sorted(removed_rows.items()):
         original = {c: str(v) for c, v in frame.iloc[r].items()}
@@ -140,17 +144,40 @@ def apply_policy(
                         "old_value": json.dumps(original, ensure_ascii=False), "new_value": "", "check": check,
                         "reason": why})
         removed[check] = removed.get(check, 0) + 1
-    cleaned = cleaned.iloc[np.flatnonzero(kept)].reset_index(drop=True)
+    kept_rows = np.flatnonzero(kept)
+    cleaned = cleaned.iloc[kept_rows].reset_index(drop=True)
     audit = pd.DataFrame(records, columns=AUDIT_COLUMNS)
     if len(audit):
         audit = audit.sort_values(["row", "column"], kind="stable").reset_index(drop=True)
     return CleanOutcome(cleaned, audit, removed, dict(sorted(blanked.items())), np.flatnonzero(kept))
 
 
-def reverse_audit(cleaned: pd.DataFrame, audit: pd.DataFrame) -> pd.DataFrame:
+def _escape_records(cleaned: pd.DataFrame, kept: np.ndarray, ids: list[str]) -> list[dict[str, object]]:
+    """One audit record per cell (and column name, row 0) the spreadsheet outputs escape."""
+    out: list[dict[str, object]] = []
+    for i in needs_escape_any([str(c) for c in cleaned.columns]):
+        name = str(cleaned.columns[i])
+        out.append({"row": 0, "respondent": "", "item": "", "column": name, "old_value": name,
+                    "new_value": escape(name), "check": SHEET_ESCAPE, "reason": ESCAPE_REASON})
+    for col in cleaned.columns:
+        cells = cleaned[col].astype(str).tolist()
+        for r in needs_escape_any(cells):
+            if kept[r]:
+                out.append({"row": r + 1, "respondent": ids[r], "item": "", "column": str(col), "old_value": cells[r],
+                            "new_value": escape(cells[r]), "check": SHEET_ESCAPE, "reason": ESCAPE_REASON})
+    return out
+
+
+def reverse_audit(cleaned: pd.DataFrame, audit: pd.DataFrame, added: Sequence[str] = ()) -> pd.DataFrame:
     """Undo every change in `audit`: put removed respondents back at their rows and old
-    values back in their cells. Gives the original export's cells exactly."""
+    values back in their cells. Gives the original export's cells exactly. `added` names
+    columns the cleaner appended (summary.json's `added_columns`), dropped first."""
+    cleaned = cleaned.drop(columns=[c for c in added if c in cleaned.columns])
     audit = audit.astype({"row": int})
+    header = audit[audit["row"] == 0]
+    names = {str(new): str(old) for old, new in zip(header["old_value"], header["new_value"], strict=True)}
+    cleaned = cleaned.rename(columns=lambda c: names.get(str(c), c))
+    audit = audit[audit["row"] != 0]
     removals = audit[audit["column"].fillna("") == ""]
     changes = audit[audit["column"].fillna("") != ""]
     removed_at = {int(r): json.loads(v) for r, v in zip(removals["row"], removals["old_value"], strict=True)}

@@ -3,18 +3,13 @@ entry point."""
 
 from __future__ import annotations
 
-import sys
 from pathlib import Path
 from typing import Any, Literal
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator
 
+from logiccheck.config import read_toml
 from logiccheck.quality.config import QualityConfig
-
-if sys.version_info >= (3, 11):
-    import tomllib
-else:  # pragma: no cover
-    import tomli as tomllib
 
 # Checks whose flagged respondents a policy may remove.
 RESPONDENT_CHECKS = (
@@ -39,7 +34,8 @@ class PolicyError(ValueError):
 
 
 class CleanPolicy(BaseModel):
-    model_config = ConfigDict(extra="forbid")
+    # Strict: `blank_invalid = "no"` is a mistake to report, not a false to guess.
+    model_config = ConfigDict(extra="forbid", strict=True)
 
     blank_out_of_path: bool = True  # answers the routing did not ask for (with cascade)
     blank_invalid: bool = True  # undeclared codes, out-of-range numbers, non-response on strict items
@@ -56,6 +52,16 @@ class CleanPolicy(BaseModel):
         for name in v:
             if name not in RESPONDENT_CHECKS:
                 raise ValueError(f"unknown check {name!r}; use one of {', '.join(RESPONDENT_CHECKS)}")
+        return v
+
+    @field_validator("keep_dispositions")
+    @classmethod
+    def _keeps_someone(cls, v: list[str] | None) -> list[str] | None:
+        if v is not None and not v:
+            raise ValueError(
+                "an empty list keeps no disposition, so every respondent would be removed; "
+                "list the dispositions to keep (e.g. [\"complete\", \"partial\"]) or leave the key out to keep everyone"
+            )
         return v
 
     @property
@@ -92,14 +98,7 @@ def load_policy(path: str | Path | None) -> tuple[CleanPolicy, QualityConfig]:
     if path is None:
         return CleanPolicy(), QualityConfig()
     path = Path(path)
-    try:
-        doc: dict[str, Any] = tomllib.loads(path.read_text(encoding="utf-8"))
-    except FileNotFoundError:
-        raise PolicyError(f"{path}: no such policy file") from None
-    except (OSError, UnicodeDecodeError) as err:
-        raise PolicyError(f"{path}: cannot read ({err})") from None
-    except tomllib.TOMLDecodeError as err:
-        raise PolicyError(f"{path}: not valid TOML ({err})") from None
+    doc: dict[str, Any] = read_toml(path, "policy", PolicyError)
     doc = doc.get("tool", {}).get("logiccheck", doc)
     unknown = sorted(set(doc) - {"clean", "quality", "data", "lint", "ci", "report"})
     if unknown:

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -10,9 +11,9 @@ import numpy as np
 import pandas as pd
 
 from logiccheck import __version__
-from logiccheck.atomic import write_text_atomic
 from logiccheck.clean.apply import CleanOutcome, apply_policy
-from logiccheck.clean.io import ExportError, export_format, file_hash, write_json, write_table
+from logiccheck.clean.io import export_format, file_hash, write_json_to, write_table_to
+from logiccheck.clean.outset import output_names, write_set
 from logiccheck.clean.policy import BIAS_WARNING, CleanPolicy, PolicyError
 from logiccheck.data.mapping import DataMapping
 from logiccheck.loader import Loaded
@@ -72,6 +73,21 @@ def _markers(mapping: DataMapping) -> set[str]:
     return {*mapping.blank_markers(), *(m.strip() for m in mapping.not_shown), *(m.strip() for m in mapping.unanswered)}
 
 
+def _weights_after_policy(q: Questionnaire, result: PipelineResult, kept: np.ndarray, opts: RunOptions) -> Any:
+    """Weights raked again over the respondents the cleaned export keeps, so their mean is
+    1 and the margins hold in the file handed on (the policy removed some)."""
+    from logiccheck.pipeline.run import _context
+    from logiccheck.weights.analysis import weights_analysis
+    from logiccheck.weights.margins import Margins, load_margins
+
+    assert result.export is not None and result.config is not None and result.mapping is not None
+    ctx = _context(q, result, result.export, result.config, result.mapping, result.quality_config or QualityConfig())
+    ctx.disposition = np.where(kept, np.asarray(result.disposition, dtype=object), "(removed by the policy)")
+    margins = opts.margins
+    ctx.options["margins"] = margins if isinstance(margins, Margins) or margins is None else load_margins(margins, q)
+    return weights_analysis(ctx)
+
+
 def clean_export(
     spec: Questionnaire | Loaded,
     export: Path,
@@ -110,15 +126,14 @@ def clean_export(
             )
     frame = result.cells()
     outcome = apply_policy(q, frame, result, policy, _markers(result.mapping or DataMapping()))
+    if len(frame) and not len(outcome.cleaned):
+        why = ", ".join(f"{check} {n}" for check, n in sorted(outcome.removed.items()))
+        raise PolicyError(
+            f"the policy would remove every respondent ({why}); nothing was written. "
+            "Check [clean] respondents and keep_dispositions"
+        )
 
-    stem = export.stem
-    main_out = out / f"{stem}.cleaned{export.suffix.lower()}"
-    targets = [main_out, out / f"{stem}.cleaned.csv", out / "audit.csv", out / "summary.json", out / "findings.csv"]
-    protected = {export.resolve(), *([Path(opts.frame).resolve()] if opts.frame else [])}
-    for t in targets:
-        if t.resolve() in protected:
-            raise ExportError(f"{t}: would overwrite an input file; choose another --out folder")
-
+    names = output_names(export)
     stops = [e.name for e in q.entries if e.kind == "stop"]
     disp_counts = dict(result.dispositions)
     if sample_outcomes is not None:
@@ -147,20 +162,34 @@ def clean_export(
         "repair_hints": _repair_hints(q, result, quality),
         "notes": [*result.notes, BIAS_WARNING],
     }
+    in_output = np.zeros(result.respondents, dtype=bool)
+    in_output[outcome.kept] = True
+    if "weights" in result.analyses and not in_output.all():
+        result.analyses["weights"] = _weights_after_policy(q, result, in_output, opts)
     for analysis in result.analyses.values():
         summary.update(analysis.summary)
     cleaned = outcome.cleaned
+    added: list[str] = []
     for analysis in result.analyses.values():
         for name, values in analysis.columns.items():
             column = np.asarray(values, dtype=object)[outcome.kept]
             cleaned[name] = ["" if v is None or (isinstance(v, float) and v != v) else str(v) for v in column]
+            added.append(name)
+    if added:
+        # What `reverse_audit(cleaned, audit, added)` drops to rebuild the original export.
+        summary["added_columns"] = added
 
-    out.mkdir(parents=True, exist_ok=True)
-    write_table(cleaned, main_out, fmt, policy.sheet_safe, result.delimiter or ",")
+    safe, delimiter = policy.sheet_safe, result.delimiter or ","
+    writers: dict[str, Callable[[Path], None]] = {names[0]: lambda p: write_table_to(cleaned, p, fmt, safe, delimiter)}
     if fmt != "csv":
-        write_table(cleaned, targets[1], "csv", policy.sheet_safe)
-    write_table(outcome.audit.astype(str), targets[2], "csv", policy.sheet_safe)
-    write_text_atomic(targets[4], lambda fh: write_findings_csv(result, fh, sheet_safe=policy.sheet_safe))
-    write_json(summary, targets[3])
-    written = [main_out, *([targets[1]] if fmt != "csv" else []), targets[2], targets[4], targets[3]]
+        writers[names[1]] = lambda p: write_table_to(cleaned, p, "csv", safe)
+    writers["audit.csv"] = lambda p: write_table_to(outcome.audit.astype(str), p, "csv", safe)
+
+    def findings_csv(p: Path) -> None:
+        with open(p, "w", encoding="utf-8", newline="") as fh:
+            write_findings_csv(result, fh, sheet_safe=safe)
+
+    writers["findings.csv"] = findings_csv
+    writers["summary.json"] = lambda p: write_json_to(summary, p)
+    written = write_set(out, writers)
     return CleanRun(result, outcome, summary, written)

@@ -27,3 +27,13 @@ def escape(cell: str) -> str:
 
 def unescape(cell: str) -> str:
     return cell[1:] if cell.startswith("'") and needs_escape(cell[1:]) else cell
+
+
+SHEET_ESCAPE = "sheet-escape"
+ESCAPE_REASON = ("a spreadsheet would run this cell as a formula; the CSV and .xlsx outputs hold it with "
+                 "a leading apostrophe (new_value)")
+
+
+def needs_escape_any(cells: list[str]) -> list[int]:
+    """Positions of the cells that need the escape (a quick test on the first character first)."""
+    return [i for i, c in enumerate(cells) if c and (c[0] in "=+-@\t\r'") and needs_escape(c)]

@@ -25,10 +25,11 @@ from logiccheck.quality.rates import RatesError
 @click.option("--out", "out", required=True, type=click.Path(file_okay=False), help="Folder for the cleaned export, audit.csv, findings.csv and summary.json.")
 @click.option("--policy", "policy_file", type=click.Path(dir_okay=False), help="TOML with [clean] and [quality] tables [default: those of the logiccheck.toml found above the spec].")
 @click.option("--sample", "sample_file", type=click.Path(dir_okay=False), help="Final outcome of every sampled case, for the outcome rates.")
+@click.option("--margins", "margins_file", type=click.Path(dir_okay=False), help="Population margins (TOML): rake a `weight` column to them.")
 @color_option
 def clean_command(spec: str, data: str, map_file: str | None, frame: str | None, encoding: str | None,
                   delimiter: str | None, chunk_rows: int | None, out: str, policy_file: str | None,
-                  sample_file: str | None, color: str) -> None:
+                  sample_file: str | None, margins_file: str | None, color: str) -> None:
     """Apply a cleaning policy to an export; write the cleaned file and an audit trail."""
     try:
         loaded = load_file(spec)
@@ -45,7 +46,8 @@ def clean_command(spec: str, data: str, map_file: str | None, frame: str | None,
             model = config.models.get("clean")
             policy, quality = (model if isinstance(model, CleanPolicy) else CleanPolicy()), None
         outcomes = read_outcomes(Path(sample_file)) if sample_file else None
-        options = run_options(map_file, frame, encoding, delimiter, chunk_rows, config=config, quality=quality)
+        options = run_options(map_file, frame, encoding, delimiter, chunk_rows, config=config, quality=quality,
+                              margins=margins_file)
         run = clean_export(loaded, Path(data), Path(out), policy, sample_outcomes=outcomes, options=options)
     except (PolicyError, ExportError, RatesError) as err:
         fail(str(err))
@@ -66,6 +68,10 @@ def clean_command(spec: str, data: str, map_file: str | None, frame: str | None,
     rr = s["rates"]
     if rr.get("RR1") is not None:
         console.print(f"  outcome rates ({rr['basis']}): RR1 {rr['RR1']:.3f}, COOP1 {rr['COOP1'] or 0:.3f}")
+    if "weights" in s:
+        from logiccheck.report.weights_text import print_weights
+
+        print_weights(console, s["weights"])
     if s["repair_hints"]:
         console.print(f"  repair hints for {len(s['repair_hints'])} respondents failing checks (summary.json)")
     if s["output"]["removed"]:

@@ -80,7 +80,7 @@ def emit(
             click.echo(text)
     elif fmt == "junit":
         stages = STAGE_ORDER if solver else ("spec",)
-        ran = [n for n, c in all_checks().items() if c.stage in stages]
+        ran = list(all_checks(stages))
         click.echo(junit_text(diagnostics, paths, ran, disabled=disabled or set(), fail_on=Severity(fail_on)))
     else:
         render_lint(make_console(color), diagnostics, paths, sources)

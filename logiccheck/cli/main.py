@@ -40,6 +40,10 @@ COMMANDS: dict[str, tuple[str, str]] = {
               "Response, cooperation, refusal and contact rates from final case outcomes."),
     "draft": ("logiccheck.cli.draft:draft_command",
               "Write a starting spec from an export: items, answer lists and the routing the answers follow."),
+    "format": ("logiccheck.cli.format:format_command",
+               "Lay out specs one way: indentation, spacing, aligned answer lists, blank lines."),
+    "server": ("logiccheck.cli.server:server_command",
+               "Language server for editors: LSP over standard input and output."),
 }
 
 
@@ -49,6 +53,12 @@ class LazyGroup(click.Group):
     def __init__(self, *args: object, lazy: dict[str, tuple[str, str]], **kwargs: object) -> None:
         super().__init__(*args, **kwargs)  # type: ignore[arg-type]
         self.lazy = lazy
+
+    def add_command(self, cmd: click.Command, name: str | None = None) -> None:
+        # Every command runs behind the path check and the one-line error net.
+        from logiccheck.safety.cli_guard import guarded
+
+        super().add_command(guarded(cmd), name)
 
     def list_commands(self, ctx: click.Context) -> list[str]:
         return sorted({*super().list_commands(ctx), *self.lazy})

@@ -102,7 +102,13 @@ def emit_validation(
         else:
             click.echo(items_csv(result), nl=False)
     else:
-        render_validation(make_console(color), result, show=show)
+        console = make_console(color)
+        render_validation(console, result, show=show)
+        weights = getattr(result, "analyses", {}).get("weights")
+        if weights is not None:
+            from logiccheck.report.weights_text import print_margins
+
+            print_margins(console, weights.sections)
 
 
 def validation_status(result: ValidationResult, fail_on: str | None) -> int:
@@ -132,6 +138,7 @@ def spec_note(loaded: Loaded) -> str | None:
 @data_options
 @click.option("--format", "fmt", type=click.Choice(DATA_FORMATS), default="text", show_default=True)
 @click.option("--out", "out", type=click.Path(), help="With --format csv: write items.csv and findings.csv in this folder; with --format html: the report file.")
+@click.option("--margins", "margins_file", type=click.Path(dir_okay=False), help="Population margins (TOML): the sample against the population, per category.")
 @fail_on_option
 @color_option
 def validate_command(
@@ -145,13 +152,15 @@ def validate_command(
     show: int,
     fmt: str,
     out: str | None,
+    margins_file: str | None,
     fail_on: str | None,
     color: str,
 ) -> None:
     """Check an export against the spec's routing: off-route answers, missing, invalid values."""
     loaded = load_spec(spec)
     note = spec_note(loaded)
-    result = run_validation(loaded, data, run_options(map_file, frame, encoding, delimiter, chunk_rows), color)
+    options = run_options(map_file, frame, encoding, delimiter, chunk_rows, margins=margins_file)
+    result = run_validation(loaded, data, options, color)
     if note:
         click.echo(f"logiccheck: note: {note}", err=True)
     if fmt == "html":

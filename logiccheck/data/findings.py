@@ -14,6 +14,7 @@ import numpy as np
 from pydantic import BaseModel
 
 from logiccheck.diagnostics import Severity
+from logiccheck.safety.text import clip
 
 
 class Finding(BaseModel):
@@ -71,7 +72,7 @@ class FindingBlock:
     def _message(self, i: int, value: str | None) -> str:
         if self.messages is not None:
             return self.messages[i]
-        return self.message.replace("{value}", value or "") if "{value}" in self.message else self.message
+        return self.message.replace("{value}", clip(value or "")) if "{value}" in self.message else self.message
 
     def rows_out(self) -> Iterator[tuple[str, str, str | None, int | None, str | None, str | None, str]]:
         """(check, severity, respondent, row, item, value, message) without building records."""

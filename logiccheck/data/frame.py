@@ -7,6 +7,7 @@ one), so a stray "12a" becomes an invalid value rather than a silent NaN.
 
 from __future__ import annotations
 
+import re
 from collections.abc import Iterator
 from dataclasses import dataclass, field
 
@@ -277,8 +278,40 @@ def _numbers_distinct(d: Distinct, is_blank: np.ndarray) -> tuple[np.ndarray, np
                 parsed[i] = False
                 continue
             value[i] = v
+    parsed &= is_blank | strict_numbers(pc.utf8_trim_whitespace(d.dictionary))
     value = np.where(parsed, value, np.nan)
     return ~is_blank, value, parsed
+
+
+# A survey number: ASCII digits, an optional sign, point and exponent. Wider notions
+# (other scripts' digits, full-width digits, underscores) are not answers a survey
+# system writes, so they are invalid rather than quietly read.
+STRICT_NUMBER = r"^[+-]?([0-9]+(\.[0-9]*)?|\.[0-9]+)([eE][+-]?[0-9]+)?$"
+_STRICT_NUMBER_RE = re.compile(STRICT_NUMBER)
+_NONZERO_MANTISSA = r"^[+-]?[0-9.]*[1-9]"
+
+
+def strict_numbers(trimmed: pa.Array) -> np.ndarray:
+    """Per text: written as a survey number, and representable (a nonzero text that
+    would read as 0, such as 1e-400, is not)."""
+    if len(trimmed) == 0:
+        return np.zeros(0, dtype=bool)
+    ok = np.asarray(pc.fill_null(pc.match_substring_regex(trimmed, STRICT_NUMBER), False), dtype=bool)
+    if ok.any():
+        nonzero = np.asarray(pc.fill_null(pc.match_substring_regex(trimmed, _NONZERO_MANTISSA), False), dtype=bool)
+        value = np.asarray(pc.cast(pc.if_else(pa.array(ok), trimmed, pa.scalar("0")), pa.float64()).to_numpy(zero_copy_only=False))
+        ok &= ~(nonzero & (value == 0)) & np.isfinite(value)
+    return ok
+
+
+def strict_number(token: str) -> float | None:
+    """One text as a survey number, or None."""
+    if not _STRICT_NUMBER_RE.match(token):
+        return None
+    v = float(token)
+    if not np.isfinite(v) or (v == 0 and re.match(_NONZERO_MANTISSA, token)):
+        return None
+    return v
 
 
 def parse_numbers(arr: pa.Array | pa.ChunkedArray, blank: set[str]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -385,11 +418,7 @@ def decode(plan: NamePlan, d: Distinct, mapping: DataMapping) -> tuple[Distinct,
 
 
 def _is_number(text: str) -> bool:
-    try:
-        float(text)
-    except ValueError:
-        return False
-    return True
+    return strict_number(text) is not None
 
 
 def label_hint(plan: NamePlan, text: str) -> str:
@@ -579,13 +608,14 @@ def _multi_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping, blank: s
                 if token == "" or token in blank:
                     continue
                 label = plan.answers.get(token.casefold()) if mapping.values != "codes" else None
-                try:
-                    v = float(label if label is not None and mapping.values == "labels" else token)
-                except ValueError:
-                    if label is None:
+                if label is not None and mapping.values == "labels":
+                    v = float(label)
+                else:
+                    strict = strict_number(token)
+                    if strict is None and label is None:
                         d_bad[i] = True
                         continue
-                    v = float(label)
+                    v = strict if strict is not None else float(label)  # type: ignore[arg-type]
                 j = position.get(int(v)) if v.is_integer() else None
                 if j is None:
                     d_bad[i] = True

@@ -24,7 +24,7 @@ class MappingError(Exception):
 class MultiLayout(BaseModel):
     """How a `multi` item sits in the export."""
 
-    model_config = ConfigDict(extra="forbid")
+    model_config = ConfigDict(extra="forbid", strict=True)
 
     # `columns`: one NAME_N column per option holding 1 / 0 / blank (the default);
     # `delimited`: one column NAME holding the chosen code values, e.g. "1;4".
@@ -45,13 +45,19 @@ class MultiLayout(BaseModel):
     def _column(cls, v: str) -> str:
         if "{name}" not in v or "{value}" not in v:
             raise ValueError("must contain both {name} and {value}, e.g. \"{name}_{value}\"")
+        try:
+            v.format(name="q", value=1)
+        except (KeyError, ValueError, IndexError, AttributeError):
+            raise ValueError(
+                "is not a column template: only {name} and {value} may stand in braces (write {{ and }} for a brace)"
+            ) from None
         return v
 
 
 class DataMapping(BaseModel):
     """The `[data]` table: id column, multi layout, markers, duration, frame, renames."""
 
-    model_config = ConfigDict(extra="forbid")
+    model_config = ConfigDict(extra="forbid", strict=True)
 
     id: str = "id"
     multi: MultiLayout = Field(default_factory=MultiLayout)

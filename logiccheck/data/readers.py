@@ -18,6 +18,8 @@ from typing import TYPE_CHECKING
 import pyarrow as pa
 import pyarrow.csv as pacsv
 
+from logiccheck.safety.streams import spool
+
 if TYPE_CHECKING:
     import pandas as pd
 
@@ -63,13 +65,15 @@ def open_export(
 ) -> Export:
     """Open an export for chunked reading; the format follows the file name's suffix.
     A CSV's delimiter is detected from its header line unless `delimiter` is given."""
-    path = Path(path)
+    shown = str(path)
+    path = spool(path)
     if not path.exists():
-        raise DataReadError(f"{path}: no such file; give the path of the export (CSV, TSV, .xlsx, .parquet or .jsonl)")
+        raise DataReadError(f"{shown}: no such file; give the path of the export (CSV, TSV, .xlsx, .parquet or .jsonl)")
     if path.is_dir():
         raise DataReadError(f"{path}: is a folder; give the path of an export file")
     suffix = _suffix(path)
     size = path.stat().st_size
+    encoding = encoding or bom_encoding(path)
     if suffix in (".csv", ".tsv", ".tab", ".txt"):
         if delimiter is None:
             delimiter = "\t" if suffix in (".tsv", ".tab") else detect_delimiter(path, encoding)
@@ -88,6 +92,34 @@ def open_export(
 
 
 # ---------------------------------------------------------------- CSV / TSV
+def bom_encoding(path: Path) -> str | None:
+    """UTF-16 and UTF-32 text announce themselves with a byte-order mark; None otherwise."""
+    try:
+        with path.open("rb") as fh:
+            head = fh.read(4)
+    except OSError:
+        return None
+    if head.startswith((b"\xff\xfe\x00\x00", b"\x00\x00\xfe\xff")):
+        return "utf-32"
+    if head.startswith((b"\xff\xfe", b"\xfe\xff")):
+        return "utf-16"
+    return None
+
+
+def ragged_line(path: Path, delimiter: str, encoding: str | None, width: int) -> tuple[int, int] | None:
+    """(line number, cells) of the first record whose number of cells is not `width`."""
+    csv.field_size_limit(2**31 - 1)
+    try:
+        with path.open("r", encoding=encoding or "utf-8-sig", newline="") as fh:
+            reader = csv.reader(fh, delimiter=delimiter)
+            for row in reader:
+                if row and len(row) != width:
+                    return reader.line_num, len(row)
+    except (OSError, UnicodeDecodeError, csv.Error):
+        return None
+    return None
+
+
 DELIMITERS = (",", ";", "\t", "|")
 DELIMITER_NAMES = {",": "comma", ";": "semicolon", "\t": "tab", "|": "vertical bar"}
 
@@ -212,6 +244,12 @@ def _open_delimited(
             if pending:
                 yield pa.Table.from_batches(pending)
         except pa.ArrowInvalid as err:
+            bad = ragged_line(path, delimiter, encoding, len(names)) if "columns" in str(err) else None
+            if bad is not None:
+                raise DataReadError(
+                    f"{path}: line {bad[0]} has the wrong number of cells ({bad[1]}; the header has {len(names)}); "
+                    "check quoting and delimiters on that line"
+                ) from None
             raise _csv_error(path, str(err), encoding) from None
 
     return Export(path, names, chunks(), size, delimiter)
@@ -295,7 +333,10 @@ def _open_xlsx(path: Path, chunk_rows: int | None, size: int) -> Export:
     except Exception as err:  # noqa: BLE001 - openpyxl raises many kinds; all mean unreadable
         raise DataReadError(f"{path}: cannot read as .xlsx ({type(err).__name__}: {err})") from None
     sheet = book.worksheets[0]
-    rows = sheet.iter_rows(values_only=True)
+    # The declared size of a sheet is not trusted (a 2 KB file may declare a million
+    # rows): only rows present in the file are read, one at a time.
+    sheet.reset_dimensions()
+    rows = (row for row in sheet.iter_rows(values_only=True) if any(v is not None and v != "" for v in row))
     header = next(rows, None)
     if header is None:
         raise DataReadError(f"{path}: the first sheet is empty; an export needs a header row")

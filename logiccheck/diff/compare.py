@@ -75,11 +75,28 @@ def _answer_changes(old: Questionnaire, new: Questionnaire, oe: Entry, ne: Entry
         out.append(_change("type-changed", name, f"`{name}` {now} non-response codes (`strict` changed)", **where))
     if not ot.coded:
         return out
-    before, after = _options(old, oe.stmt), _options(new, ne.stmt)
+    listed = ot.codes_name if ot.codes_name == nt.codes_name else None
+    out.extend(_option_changes(_options(old, oe.stmt), _options(new, ne.stmt), name, f"`{name}`", where, listed))
+    return out
+
+
+def _option_changes(
+    before: list[n.CodeOption],
+    after: list[n.CodeOption],
+    item: str | None,
+    what: str,
+    where: dict[str, Any],
+    listed: str | None = None,
+) -> list[Change]:
+    """Recodes, new, lost and reworded options between two versions of an answer list
+    (an item's, a sample variable's, a named list nothing uses, or the non-response
+    codes). `listed` names the list in the change's details."""
+    extra = {"list": listed} if listed else {}
     by_label_old = {o.label: o for o in before}
     by_label_new = {o.label: o for o in after}
     by_value_old = {o.value: o for o in before}
     by_value_new = {o.value: o for o in after}
+    out: list[Change] = []
     moved = []
     for label, o in by_label_old.items():
         m = by_label_new.get(label)
@@ -88,23 +105,25 @@ def _answer_changes(old: Questionnaire, new: Questionnaire, oe: Entry, ne: Entry
     if moved:
         first = next(m for lb, m in by_label_new.items() if lb in by_label_old and by_label_old[lb].value != m.value)
         out.append(
-            _change("recode", name, f"`{name}`: answers stored under other values: " + ", ".join(moved),
-                    old=oe.span, new=first.span, details={"moved": moved})
+            _change("recode", item, f"{what}: answers stored under other values: " + ", ".join(moved),
+                    old=where.get("old"), new=first.span, details={"moved": moved, **extra})
         )
     for label, o in by_label_old.items():
         m = by_label_new.get(label)
         if m is not None and m.value == o.value and m.text != o.text:
             out.append(
-                _change("option-reworded", name, f"`{name}` option `{label}`: \"{o.text}\" is now \"{m.text}\"",
-                        **where)
+                _change("option-reworded", item, f"{what} option `{label}`: \"{o.text}\" is now \"{m.text}\"",
+                        **where, details=dict(extra))
             )
     # An option counts as added or removed when neither its label nor its value survives.
     for o in after:
         if o.label not in by_label_old and o.value not in by_value_old:
-            out.append(_change("option-added", name, f"`{name}` gains option `{o.label}` = {o.value} \"{o.text}\"", **where))
+            out.append(_change("option-added", item, f"{what} gains option `{o.label}` = {o.value} \"{o.text}\"",
+                               **where, details=dict(extra)))
     for o in before:
         if o.label not in by_label_new and o.value not in by_value_new:
-            out.append(_change("option-removed", name, f"`{name}` loses option `{o.label}` = {o.value} \"{o.text}\"", **where))
+            out.append(_change("option-removed", item, f"{what} loses option `{o.label}` = {o.value} \"{o.text}\"",
+                               **where, details=dict(extra)))
     relabelled = [
         f"{o.value}: `{o.label}` → `{by_value_new[o.value].label}`"
         for o in before
@@ -112,7 +131,8 @@ def _answer_changes(old: Questionnaire, new: Questionnaire, oe: Entry, ne: Entry
     ]
     if relabelled:
         out.append(
-            _change("option-reworded", name, f"`{name}` labels renamed: " + ", ".join(relabelled), **where)
+            _change("option-reworded", item, f"{what} labels renamed: " + ", ".join(relabelled), **where,
+                    details=dict(extra))
         )
     return out
 
@@ -139,6 +159,8 @@ def _route_text(q: Questionnaire, e: Entry, rename: dict[str, str]) -> Any:
             out = {k: rename_refs(v) for k, v in value.items()}
             if out.get("kind") in ("ref", "func") and out.get("name") in rename:
                 out["name"] = rename[out["name"]]
+            if out.get("kind") == "code":
+                out.pop("value", None)  # codes are compared by label: a recode is reported apart
             return out
         if isinstance(value, list):
             return [rename_refs(v) for v in value]
@@ -155,11 +177,7 @@ def diff_questionnaires(old: Questionnaire, new: Questionnaire, *, routing: bool
     renamed_old = set(rename.values())
     changes: list[Change] = []
 
-    if _strip(old.nonresponse) != _strip(new.nonresponse):
-        a = ", ".join(f"{o.label} = {o.value}" for o in old.nonresponse) or "none"
-        b = ", ".join(f"{o.label} = {o.value}" for o in new.nonresponse) or "none"
-        changes.append(_change("nonresponse-changed", None, f"non-response codes were {a}, are now {b}"))
-
+    changes.extend(_list_changes(old, new))
     pairs: list[tuple[str, str]] = []  # (old name, new name) of items in both
     for name, ne in new_items.items():
         if name in old_items:
@@ -211,6 +229,7 @@ def diff_questionnaires(old: Questionnaire, new: Questionnaire, *, routing: bool
                         witness=verdict.witness, asked_in=side, **where)
             )
     changes.extend(_grid_changes(old, new))
+    changes.extend(_sample_changes(old, new))
     changes.extend(_statement_changes(old, new, cross, rename))
     order = {name: i for i, name in enumerate(list(new_items) + [k for k in old_items if k not in new_items])}
     # Screen-outs first (they explain the routing changes after them), edit rules last.
@@ -231,6 +250,52 @@ def diff_questionnaires(old: Questionnaire, new: Questionnaire, *, routing: bool
     changes.sort(key=rank)
     result.changes = changes
     return result
+
+
+def _samples(q: Questionnaire) -> dict[str, Entry]:
+    return {e.name: e for e in q.entries if e.kind == "sample"}
+
+
+def _sample_changes(old: Questionnaire, new: Questionnaire) -> list[Change]:
+    """Sample variables are compared as items are: the sample file must follow them."""
+    out: list[Change] = []
+    before, after = _samples(old), _samples(new)
+    for name, e in after.items():
+        if name not in before:
+            out.append(_change("sample-added", name, f"sample variable `{name}` is new", new=e.span))
+    for name, e in before.items():
+        if name not in after:
+            out.append(_change("sample-removed", name, f"sample variable `{name}` was removed", old=e.span))
+    for name, e in after.items():
+        if name in before:
+            out.extend(
+                c.model_copy(update={"message": "sample variable " + c.message})
+                for c in _answer_changes(old, new, before[name], e, name)
+            )
+    return out
+
+
+def _used_lists(q: Questionnaire) -> set[str]:
+    return {e.stmt.type.codes_name for e in q.entries if e.kind in ("item", "sample") and e.stmt.type.codes_name}
+
+
+def _list_changes(old: Questionnaire, new: Questionnaire) -> list[Change]:
+    """The non-response codes, and named answer lists: a list some item or sample
+    variable uses is reported with each of them; one nothing uses, under its own name."""
+    span = {"old": old.nonresponse[0].span if old.nonresponse else None,
+            "new": new.nonresponse[0].span if new.nonresponse else None}
+    out = _option_changes(old.nonresponse, new.nonresponse, None, "the non-response list", span, "nonresponse")
+    used = _used_lists(old) | _used_lists(new)
+    for name, codes in new.codes.items():
+        if name not in old.codes:
+            out.append(_change("codes-added", name, f"answer list `{name}` is new", new=codes.span))
+        elif name not in used:
+            where = {"old": old.codes[name].span, "new": codes.span}
+            out.extend(_option_changes(old.codes[name].options, codes.options, name, f"answer list `{name}`", where, name))
+    for name, codes in old.codes.items():
+        if name not in new.codes:
+            out.append(_change("codes-removed", name, f"answer list `{name}` was removed", old=codes.span))
+    return out
 
 
 def _statement_changes(

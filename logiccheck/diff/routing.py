@@ -181,7 +181,7 @@ class CrossVersion:
                 linked_old.add(oe.index)
                 linked_new.add(ne.index)
             else:
-                links.append(self.enc_old.value(old_name) == self.new_var_value(new_name))
+                links.extend(self._number_links(oe, ne, old_name, new_name))
                 linked_old.add(oe.index)
                 linked_new.add(ne.index)
             if ne.kind == "item":
@@ -209,6 +209,28 @@ class CrossVersion:
             parts = [d for d in (domains_old.get(oe.index), domains_new.get(ne.index)) if d is not None]
             if parts:
                 self._by_key.setdefault(old_name, []).append(z3.Or(parts))
+
+    def _number_links(self, oe: Entry, ne: Entry, old_name: str, new_name: str) -> list[Any]:
+        """One answer in both versions of a number item. A non-response answer is linked
+        by its label, as codes are: `dk` recoded from 98 to 97 is the same answer."""
+        vo, vn = self.enc_old.value(old_name), self.new_var_value(new_name)
+        nr_old = {o.label: o.value for o in self.q_old.nonresponse} if self.q_old.allows_nonresponse(oe.stmt) else {}
+        nr_new = {o.label: o.value for o in self.q_new.nonresponse} if self.q_new.allows_nonresponse(ne.stmt) else {}
+        if nr_old == nr_new:
+            return [vo == vn]
+        out: list[Any] = []
+        for label in sorted(set(nr_old) & set(nr_new)):
+            out.append((vo == nr_old[label]) == (vn == nr_new[label]))
+        special_old = z3.Or([vo == v for v in nr_old.values()]) if nr_old else z3.BoolVal(False)
+        special_new = z3.Or([vn == v for v in nr_new.values()]) if nr_new else z3.BoolVal(False)
+        # A substantive answer is the same number in both; a non-response answer in one
+        # version is never a substantive answer in the other.
+        out.append(z3.Implies(z3.Not(special_old), z3.Or(vo == vn, special_new)))
+        out.append(z3.Implies(z3.Not(special_new), z3.Or(vo == vn, special_old)))
+        out.append(z3.Implies(z3.And(z3.Not(special_old), z3.Not(special_new)), vo == vn))
+        out.append(z3.Implies(special_old, z3.Or(special_new, z3.Not(self.enc_new.answered(new_name)))))
+        out.append(z3.Implies(special_new, z3.Or(special_old, z3.Not(self.enc_old.answered(old_name)))))
+        return out
 
     def _facts_for(self, e_old: Entry, e_new: Entry) -> list[Any]:
         cone_old, cone_new = cone(self.q_old, e_old), cone(self.q_new, e_new)
@@ -354,5 +376,10 @@ class CrossVersion:
             labels_by_value = {v: lb for lb, v in _labels(q, entry).items()}
             return labels_by_value.get(raw.as_long(), str(raw.as_long()))
         if z3.is_int_value(raw):
+            if q.allows_nonresponse(entry.stmt):
+                # A non-response answer by its label: its value may differ by version.
+                label = next((o.label for o in q.nonresponse if o.value == raw.as_long()), None)
+                if label is not None:
+                    return label
             return str(raw.as_long())
         return raw.as_decimal(6).rstrip("?")

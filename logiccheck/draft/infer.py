@@ -33,7 +33,7 @@ DELIMITED_SHARE = 0.1
 SEPARATOR = ";"
 
 RESERVED = set(
-    "survey codes nonresponse sample section grid let skip stop check when require seconds gate key required strict "
+    "survey codes nonresponse sample section grid let skip stop check scale when require seconds gate key required strict "
     "shuffled soft and or not in has any all count answered asked single multi number decimal text note".split()
 )
 

@@ -73,8 +73,8 @@ def render(source: str, inferred: Inferred, routed: list[Routed]) -> str:
             uses.setdefault(_list_key(r.column), []).append(r.column.var.name)
     shared: dict[tuple, str] = {}
     taken: set[str] = set()
-    for key, names in uses.items():
-        if len(names) < 2:
+    for key, users in uses.items():
+        if len(users) < 2:
             continue
         first, last = key[0][1], key[-1][1]
         name = label_name(f"ans_{first}_{last}", taken)

@@ -38,6 +38,9 @@ class Builder:
     def __init__(self, file: str) -> None:
         self.file = file
         self.diagnostics: list[Diagnostic] = []
+        # Scales may stand at the top or inside a section; they are declarations, not
+        # routing, so they are gathered here rather than kept in the statement order.
+        self.scales: list[n.Scale] = []
 
     # -- positions
     def span_tree(self, tree: Tree) -> Span:
@@ -93,6 +96,7 @@ class Builder:
                 stmt = self.statement(child, None)
                 if stmt is not None:
                     spec.body.append(stmt)
+        spec.scales = self.scales
         return spec
 
     def code_line(self, tree: Tree) -> n.CodeOption:
@@ -246,6 +250,9 @@ class Builder:
                 require=opts.get("require"),
                 soft=bool(opts.get("soft")),
             )
+        if kind == "scale":
+            self.scales.append(self.scale(tree))
+            return None
         if kind == "section":
             name, title = ch[0], ch[1]
             rest = [c for c in ch[2:] if c is not None]
@@ -300,6 +307,51 @@ class Builder:
                 rows=rows,
             )
         return None
+
+    def scale(self, tree: Tree) -> n.Scale:
+        name, title = tree.children[0], tree.children[1]
+        values: dict[str, Any] = {}
+        items: list[n.ScaleItem] = []
+        for child in tree.children[2:]:
+            if not isinstance(child, Tree):
+                continue
+            if child.data == "scale_line":
+                item, mark = child.children[0], child.children[1]
+                items.append(n.construct(n.ScaleItem,
+                    span=self.span_tok(item),
+                    name=str(item),
+                    reversed=mark is not None,
+                    reversed_span=self.span_tok(mark) if mark is not None else None,
+                ))
+                continue
+            word = child.data[6:]  # scale_min, scale_top
+            number = child.children[-1]
+            span = self.span_tree(child)
+            if word in values:
+                shown = "min" if word == "min" else "score top"
+                self.error(span, f"`{shown}` is given twice on this `scale`")
+                continue
+            value = float(number)
+            if not value.is_integer() or value < 1:
+                shown = "min" if word == "min" else "score top"
+                self.error(self.span_tok(number), f"`{shown}` takes a whole number of 1 or more, not {number}")
+                continue
+            values[word] = (int(value), span)
+        if not items:
+            self.error(self.span_tok(name), f"scale `{name}` has no items; indent one item name per line under it")
+        minimum, top = values.get("min"), values.get("top")
+        return n.construct(n.Scale,
+            span=self.span_tree(tree),
+            name=str(name),
+            name_span=self.span_tok(name),
+            title=_unquote(str(title)),
+            title_span=self.span_tok(title),
+            items=items,
+            min=minimum[0] if minimum else None,
+            min_span=minimum[1] if minimum else None,
+            top=top[0] if top else None,
+            top_span=top[1] if top else None,
+        )
 
     # -- expressions
     def expr(self, node: Any) -> Any:

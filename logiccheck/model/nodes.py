@@ -280,6 +280,34 @@ class Grid(Node):
     rows: list[Item] = Field(default_factory=list)
 
 
+class ScaleItem(Node):
+    """One line of a scale: an item or grid row, maybe scored the other way round."""
+
+    name: str
+    reversed: bool = False
+    reversed_span: Span | None = None
+
+
+class Scale(Node):
+    """Items that measure one theme, scored together (a composite)."""
+
+    stmt: Literal["scale"] = "scale"
+    name: str
+    name_span: Span
+    title: str
+    title_span: Span
+    items: list[ScaleItem] = Field(default_factory=list)
+    min: int | None = None  # fewest answered items for a score; None = half, rounded up
+    min_span: Span | None = None
+    top: int | None = None  # `score top K`: top-box scoring
+    top_span: Span | None = None
+
+    @property
+    def min_answered(self) -> int:
+        """The `min` written, else half of the items rounded up (common practice, no source)."""
+        return self.min if self.min is not None else -(-len(self.items) // 2)
+
+
 class Section(Node):
     stmt: Literal["section"] = "section"
     name: str
@@ -288,6 +316,7 @@ class Section(Node):
     when: Expr | None = None
     shuffled: bool = False
     body: list[Statement] = Field(default_factory=list)
+    scales: list[Scale] = Field(default_factory=list)  # wherever they stand, in spec order
 
 
 Statement = Annotated[
@@ -306,3 +335,4 @@ class Spec(BaseModel):
     codes: list[CodeList] = Field(default_factory=list)
     nonresponse: list[CodeOption] = Field(default_factory=list)
     body: list[Statement] = Field(default_factory=list)
+    scales: list[Scale] = Field(default_factory=list)  # wherever they stand, in spec order

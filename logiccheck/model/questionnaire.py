@@ -94,6 +94,7 @@ class Questionnaire:
     symbols: dict[str, Entry] = field(default_factory=dict)  # items, rows, lets, samples
     sections: dict[str, n.Section] = field(default_factory=dict)
     grids: dict[str, n.Grid] = field(default_factory=dict)
+    scales: dict[str, n.Scale] = field(default_factory=dict)  # a namespace of their own
     section_start: dict[str, int] = field(default_factory=dict)  # section -> first entry index
     references: list[Reference] = field(default_factory=list)
     problems: list[Problem] = field(default_factory=list)

@@ -59,7 +59,45 @@ class Resolver:
         self.resolve_targets()
         for entry in q.entries:
             self.resolve_entry(entry)
+        for scale in spec.scales:
+            self.declare_scale(scale)
         return q
+
+    def declare_scale(self, scale: n.Scale) -> None:
+        """Scales have a namespace of their own; their items must be items or grid rows,
+        each named once (what kind of item is judged by `scale-mixed-answers`)."""
+        q = self.q
+        first = q.scales.get(scale.name)
+        if first is not None:
+            q.problems.append(
+                Problem(
+                    "duplicate-name",
+                    scale.name_span,
+                    f"scale `{scale.name}` is already defined (line {first.name_span.line})",
+                    item=scale.name,
+                    related=[(first.name_span, "first defined here")],
+                )
+            )
+            return
+        q.scales[scale.name] = scale
+        seen: dict[str, n.ScaleItem] = {}
+        for member in scale.items:
+            if member.name in seen:
+                q.problems.append(
+                    Problem(
+                        "duplicate-name",
+                        member.span,
+                        f"`{member.name}` is already in scale `{scale.name}` (line {seen[member.name].span.line}); list each item once",
+                        item=member.name,
+                        related=[(seen[member.name].span, "first listed here")],
+                    )
+                )
+                continue
+            seen[member.name] = member
+            if member.name not in q.symbols:
+                q.problems.append(
+                    Problem("unknown-name", member.span, f"scale `{scale.name}` lists `{member.name}`, which is not defined", item=member.name)
+                )
 
     def declare(self, entry: Entry, name: str, span: Span) -> None:
         """Items, rows, derived values and sample variables share one namespace."""

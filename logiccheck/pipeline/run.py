@@ -20,8 +20,12 @@ from logiccheck.checks.data_context import DataContext
 from logiccheck.checks.data_runner import run_data_checks
 from logiccheck.config import Config, ConfigError, config_for
 from logiccheck.data.dispositions import tally
+<<<<<<< HEAD
 from logiccheck.data.findings import FindingBlock
 from logiccheck.data.frame import Cells, Layout, type_cells
+=======
+from logiccheck.data.frame import Layout
+>>>>>>> main
 from logiccheck.data.mapping import DataMapping, MappingError, check_mapping, load_mapping
 from logiccheck.data.readers import (
     DELIMITER_NAMES,
@@ -41,7 +45,9 @@ from logiccheck.quality import completeness
 from logiccheck.quality.bridge import state_from_validation
 from logiccheck.quality.completeness import RuleError
 from logiccheck.quality.config import QualityConfig
+from logiccheck.quality.duplicates import MatchScores
 from logiccheck.quality.route import RouteError, RouteState
+from logiccheck.weights.margins import Margins, MarginsError, load_margins
 
 Progress = Callable[[int, int], None]
 
@@ -58,6 +64,7 @@ INPUT_ERRORS: tuple[type[Exception], ...] = (
     ConfigError,
     RuleError,
     RouteError,
+    MarginsError,
 )
 
 
@@ -74,6 +81,7 @@ class RunOptions:
     chunk_rows: int | None = None
     progress: Progress | None = None
     check_settings: bool = True  # apply the configuration's [checks] table to findings
+    margins: Margins | str | Path | None = None  # population margins (TOML path or resolved)
 
 
 @dataclass
@@ -214,6 +222,8 @@ def run_pipeline(
     mapping = _mapping(opts, config)
     check_mapping(mapping, q)
     quality = _quality(opts, config, mapping)
+    if opts.margins is not None and not isinstance(opts.margins, Margins):
+        opts = dataclasses.replace(opts, margins=load_margins(opts.margins, q))
     delimiter = parse_delimiter(opts.delimiter) if opts.delimiter else mapping.delimiter
     if isinstance(source, (str, Path)) and str(source) == "-":
         with tempfile.TemporaryDirectory(prefix="logiccheck-stdin-") as tmp:
@@ -269,9 +279,21 @@ def _run(
     result.measures = result.measures.assign(disposition=disposition)
     if mapping.frame is not None:
         result.sample_frame = read_cells(mapping.frame)
+<<<<<<< HEAD
     ctx = _context(q, result, raw, config, mapping, quality, validator)
     result.blocks.extend(_quality_adapter(q, result, raw, quality, ctx, validator))
     result.blocks.extend(run_data_checks(ctx))
+=======
+    ctx = _context(q, result, raw, config, mapping, quality)
+    if opts.margins is not None:
+        ctx.options["margins"] = opts.margins
+    # A check turned off in [checks] is not run at all (some cost real time on large exports).
+    result.blocks.extend(run_data_checks(ctx, disable=config.disabled if opts.check_settings else ()))
+    # Who each near-duplicate matched, for the cleaner's keep-the-first rule.
+    near = ctx.memo.get("quality.near")
+    if near is not None:
+        result.match = MatchScores(near.score, near.partner, near.compared)
+>>>>>>> main
     result.analyses = run_analyses(ctx)
     result.notes.extend(ctx.notes)
     for analysis in result.analyses.values():
@@ -362,6 +384,7 @@ def _context(
         sample_frame=result.sample_frame,
         options={"settings": config},
     )
+<<<<<<< HEAD
 
 
 def _typed_frame(result: PipelineResult, ctx: DataContext, raw: pa.Table, validator: Validator) -> pd.DataFrame:
@@ -408,3 +431,5 @@ def _quality_adapter(
                      np.array([f.respondent], dtype=object), None if f.value is None else [f.value])
         for f in found.findings
     ]
+=======
+>>>>>>> main

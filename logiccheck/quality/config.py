@@ -31,24 +31,24 @@ class CompletenessConfig(_Strict):
 
 
 class DuplicateConfig(_Strict):
+    """`duplicate-response` and `near-duplicate` compare the items BOTH respondents
+    answered (non-response codes are answers, blanks never match, free text is not
+    compared); `near-duplicate` finds every pair above the threshold exactly, at any size."""
+
     # Kuriakose & Robbins (2016): a maximum percent match above 85 % is unlikely by chance.
     near_threshold: float = Field(0.85, ge=0, le=1)
-    # "asked": compare over the items asked of either respondent of the pair (default);
-    # "all": every item, blanks matching blanks (the published statistic).
-    near_basis: Literal["asked", "all"] = "asked"
-    # Pairs compared over fewer items than this are not scored (common practice, no source).
+    # Pairs compared on fewer items both answered than this are not scored, so a
+    # respondent with fewer answers is never a near-duplicate (common practice, no source).
     near_min_items: int = Field(10, ge=1)
     # Exact copies count only among respondents with at least this many answers: short
     # routes coincide by chance (common practice, no source).
     exact_min_answered: int = Field(10, ge=1)
+    # The four settings below are read only by the older `quality.run.run_quality` path
+    # (pairs over the items asked of either respondent, with a size budget); the
+    # `near-duplicate` check ignores them. They go when that path is retired.
+    near_basis: Literal["asked", "all"] = "asked"
     chunk_size: int = Field(2000, ge=1)
-    # Above this many respondents near-duplicates are skipped with a note: the cost grows
-    # with the square of the count (50,000 × 100 items take about half a minute on 2 cores).
     near_max_respondents: int = Field(50_000, ge=2)
-    # Above this much work (pairs × one-hot answer categories) near-duplicates are skipped
-    # with a note: wide exports with many-valued number items make the one-hot matrix
-    # large. The default keeps the check near a minute and a gigabyte on 2 cores
-    # (common practice, no source: measured here, 50,000 × 100 five-point items).
     near_max_work: float = Field(1.5e12, gt=0)
 
 
@@ -68,7 +68,8 @@ class CarelessConfig(_Strict):
 
 
 class SpeedConfig(_Strict):
-    # Faster than this fraction of the median interview length: common practice, no source.
+    # Faster than this fraction of the median seconds per item asked (among completes and
+    # partials; screen-outs and break-offs are never speeders): common practice, no source.
     fraction_of_median: float = Field(1 / 3, gt=0, lt=1)
     duration_column: str = "duration"
 
@@ -109,7 +110,7 @@ SOURCES: dict[str, str] = {
     "completeness.partial_from": "AAPOR Standard Definitions, example threshold (from memory)",
     "duplicates.near_threshold": "Kuriakose & Robbins (2016)",
     "duplicates.near_min_items": "common practice, no source",
-    "duplicates.near_max_work": "common practice, no source (a budget measured on this project's benchmark)",
+    "duplicates.near_max_work": "older run_quality path only: a budget measured on this project's benchmark",
     "duplicates.exact_min_answered": "common practice, no source",
     "careless.pattern_max_period": "common practice, no source",
     "completeness.nonresponse_counts_as_answered": "the issue's default: a non-response code is an answer",

@@ -8,49 +8,74 @@ bounded by three `chunk_size²` tiles (plus the one-hot matrices) and no Python 
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
 
 from logiccheck.quality.findings import Finding, finding
+from logiccheck.quality.nearmatch import exact_groups
+
+# How many other rows a duplicate finding names before it gives a count.
+SHOWN = 5
+
+
+def others_text(names: list[str], total: int) -> str:
+    """`a, b, c` or `a, b, c, d, e and 20,995 more` (names: the first few shown)."""
+    shown = ", ".join(names[:SHOWN])
+    return shown + (f" and {total - min(total, SHOWN):,} more" if total > SHOWN else "")
+
+
+def id_groups(ids: Sequence[object] | np.ndarray) -> list[np.ndarray]:
+    """Rows sharing an id (groups of two or more, rows ascending), in order of first row."""
+    text = np.asarray([str(i) for i in ids] if not isinstance(ids, np.ndarray) else ids.astype(str), dtype=object)
+    if text.size == 0:
+        return []
+    _, inverse, counts = np.unique(text, return_inverse=True, return_counts=True)
+    inverse = inverse.ravel()
+    rows = np.flatnonzero(counts[inverse] > 1)
+    order = rows[np.argsort(inverse[rows], kind="stable")]
+    groups = np.split(order, np.flatnonzero(np.diff(inverse[order])) + 1) if order.size else []
+    return sorted(groups, key=lambda g: int(g[0]))
+
+
+def group_messages(group: np.ndarray, label: Callable[[int], str], template: str) -> list[str]:
+    """One message per row of a group naming up to `SHOWN` other members (by `label`)
+    and a count of the rest; `template` gets {others} and {count}."""
+    first = group[: SHOWN + 1].tolist()
+    out = []
+    for r in group.tolist():
+        others = [label(o) for o in first if o != r][:SHOWN]
+        out.append(template.format(others=others_text(others, group.size - 1), count=f"{group.size:,}"))
+    return out
 
 
 def duplicate_ids(ids: Sequence[object]) -> list[Finding]:
-    s = pd.Series([str(i) for i in ids])
     out = []
-    for rid, rows in s.groupby(s).groups.items():
-        if len(rows) > 1:
-            where = ", ".join(str(r + 1) for r in rows)
-            for r in rows:
-                out.append(finding("duplicate-id", rid, r, f"id {rid} appears on {len(rows)} rows ({where})"))
-    return sorted(out, key=lambda f: f.row)
+    for group in id_groups(ids):
+        rid = str(ids[int(group[0])])
+        for r, msg in zip(group.tolist(), group_messages(group, lambda o: f"row {o + 1}", f"id {rid} appears on {{count}} rows; also on {{others}}"),
+                          strict=True):
+            out.append(finding("duplicate-id", rid, r, msg))
+    return sorted(out, key=lambda f: f.row or 0)
 
 
 def duplicate_responses(ids: Sequence[object], answers: pd.DataFrame, min_answered: int = 3) -> list[Finding]:
     """Respondents whose answers on every substantive item are identical (blanks equal),
     among those with at least `min_answered` answers. `answers` is numeric (NaN = blank)."""
     values = answers.to_numpy(dtype=float)
-    enough = np.flatnonzero((~np.isnan(values)).sum(axis=1) >= min_answered)
+    codes = np.zeros(values.shape, np.int64)
+    for j in range(values.shape[1]):
+        present = ~np.isnan(values[:, j])
+        if present.any():
+            codes[present, j] = np.unique(values[present, j], return_inverse=True)[1].ravel() + 1
     out: list[Finding] = []
-    if enough.size < 2:
-        return out
-    # Exact grouping of whole rows; a blank gets a value no answer can have.
-    filled = np.where(np.isnan(values[enough]), -np.inf, values[enough])
-    _, inverse, counts = np.unique(filled, axis=0, return_inverse=True, return_counts=True)
-    inverse = inverse.ravel()
-    sel = np.flatnonzero(counts[inverse] > 1)
-    order = sel[np.argsort(inverse[sel], kind="stable")]
-    for group in np.split(order, np.flatnonzero(np.diff(inverse[order])) + 1) if order.size else []:
-        rows = enough[group].tolist()
-        answered = int((~np.isnan(values[rows[0]])).sum())
-        for r in rows:
-            others = [str(ids[o]) for o in rows if o != r]
-            shown = ", ".join(others[:5]) + (f" and {len(others) - 5} more" if len(others) > 5 else "")
-            out.append(finding("duplicate-response", ids[r], r,
-                               f"the same {answered} answers (and the same blanks) as respondent {shown}", value=rows[0]))
-    return sorted(out, key=lambda f: f.row)
+    for group in exact_groups(codes, min_answered):
+        answered = int((codes[group[0]] != 0).sum())
+        msgs = group_messages(group, lambda o: str(ids[o]), f"the same {answered} answers (and the same blanks) as respondent {{others}}")
+        out += [finding("duplicate-response", ids[r], r, m, value=int(group[0])) for r, m in zip(group.tolist(), msgs, strict=True)]
+    return sorted(out, key=lambda f: f.row or 0)
 
 
 @dataclass
@@ -117,7 +142,8 @@ def max_percent_match(
         # Items asked of everyone add nothing to "neither was asked".
         na = not_asked[:, not_asked.any(axis=0)].astype(np.float32)
     elif basis == "all":
-        neither_onehot = na = None
+        neither_onehot = None
+        na = None
     else:
         raise ValueError(f"unknown basis {basis!r}; use 'asked' or 'all'")
 
@@ -207,7 +233,7 @@ def near_duplicates(
     (already exact duplicates) are left to `duplicate-response`."""
     out = []
     skip = exclude or set()
-    for r in np.flatnonzero(np.nan_to_num(scores.score, nan=-1.0) > threshold):
+    for r in np.flatnonzero(np.nan_to_num(scores.score, nan=-1.0) > threshold).tolist():
         if int(r) in skip:
             continue
         p = int(scores.partner[r])

@@ -42,3 +42,24 @@ def bar_text(expected: int, answered: int, out_of_path: int, missing_on_path: in
     for char in bar_cells(expected, answered, out_of_path, missing_on_path, width):
         text.append(char, style=STYLES[char])
     return text
+
+
+def signed_bar_cells(value: float | None, width: int = 10) -> str:
+    """A bar for a value in −1..1 (a correlation): half the cells each side of a centre
+    line, filled towards the left for negative values and to the right for positive ones."""
+    half = width // 2
+    if value is None or value != value:
+        return EMPTY * half + MARK + EMPTY * half
+    v = max(-1.0, min(1.0, value))
+    filled = round(abs(v) * half)
+    if v < 0:
+        return EMPTY * (half - filled) + OUT * filled + MARK + EMPTY * half
+    return EMPTY * half + MARK + ON * filled + EMPTY * (half - filled)
+
+
+def signed_bar_text(value: float | None, width: int = 10) -> Text:
+    """The signed bar with colours: red to the left of the centre, blue to the right."""
+    text = Text()
+    for char in signed_bar_cells(value, width):
+        text.append(char, style=STYLES[char])
+    return text

@@ -10,6 +10,8 @@ from rich.text import Text
 from logiccheck.data.result import ValidationResult
 from logiccheck.diagnostics import SEVERITY_ORDER
 from logiccheck.report.bars import bar_text
+from logiccheck.report.scale_text import render_scales
+from logiccheck.report.textsafe import terminal_text
 
 STYLE = {"error": "bold red", "warning": "yellow", "info": "cyan"}
 BAR_WIDTH = 6  # cells of the route bar (fits an 80-column terminal with the flag); 12 on wide ones
@@ -19,7 +21,7 @@ def render_validation(console: Console, result: ValidationResult, *, show: int =
     """The table (answered > expected highlighted), then up to `show` findings per check."""
     source = result.source or "export"
     table = Table(
-        title=f"{escape(source)}: {result.respondents} respondents",
+        title=f"{escape(terminal_text(source))}: {result.respondents} respondents",
         title_justify="left",
         header_style="bold",
         show_edge=False,
@@ -42,7 +44,7 @@ def render_validation(console: Console, result: ValidationResult, *, show: int =
         flag = "[bold red]> expected[/bold red]" if over else ""
         answered = f"[bold red]{r.answered}[/bold red]" if over else str(r.answered)
         table.add_row(
-            escape(r.item),
+            escape(terminal_text(r.item)),
             str(r.expected),
             answered,
             f"[red]{r.out_of_path}[/red]" if r.out_of_path else "0",
@@ -54,6 +56,9 @@ def render_validation(console: Console, result: ValidationResult, *, show: int =
     console.print(table)
     if len(result.table) > table_rows:
         console.print(f"[dim]… {len(result.table) - table_rows} more items (use --format csv for all)[/dim]")
+    for analysis in getattr(result, "analyses", {}).values():
+        if analysis.sections.get("scales"):
+            render_scales(console, analysis.sections["scales"])
     counts = result.counts_by_check()
     if not counts:
         console.print("[green]no findings[/green]")
@@ -77,7 +82,7 @@ def render_validation(console: Console, result: ValidationResult, *, show: int =
         shown = 0
         for f in heads[:show]:
             where = f"row {f.row}, id {f.respondent}" if f.row is not None else "file"
-            console.print(f"  [dim]{escape(where)}:[/dim] {escape(f.message)}", highlight=False, soft_wrap=True)
+            console.print(f"  [dim]{escape(terminal_text(where))}:[/dim] {escape(terminal_text(f.message))}", highlight=False, soft_wrap=True)
             shown += 1
         if count > shown:
             console.print(f"  [dim]… and {count - shown} more (--format json or csv lists all)[/dim]", highlight=False)
@@ -90,4 +95,4 @@ def render_validation(console: Console, result: ValidationResult, *, show: int =
     ]
     console.print(f"{result.respondents} respondents validated: " + ", ".join(parts), highlight=False)
     for note in result.notes:
-        console.print(f"[dim]note: {escape(note)}[/dim]", highlight=False)
+        console.print(f"[dim]note: {escape(terminal_text(note))}[/dim]", highlight=False)

@@ -97,10 +97,22 @@ def _detail(q: Questionnaire, stmt: Any) -> str:
     if spec is None:
         return ""
     if spec.kind in ("single", "multi"):
-        return f"{spec.kind} {spec.codes_name or '{…}'}"
-    if spec.kind in ("number", "decimal"):
-        return f"{spec.kind} {spec.lo:g}..{spec.hi:g}"
-    return spec.kind
+        out = f"{spec.kind} {spec.codes_name or '{…}'}"
+    elif spec.kind in ("number", "decimal"):
+        out = f"{spec.kind} {spec.lo:g}..{spec.hi:g}"
+    else:
+        out = spec.kind
+    member = scale_membership(q).get(getattr(stmt, "name", ""))
+    return f"{out} · {member}" if member else out
+
+
+def scale_membership(q: Questionnaire) -> dict[str, str]:
+    """Item → "scale NAME" (with "reversed"), for every item a scale lists."""
+    out: dict[str, list[str]] = {}
+    for scale in q.scales.values():
+        for m in scale.items:
+            out.setdefault(m.name, []).append(f"scale {scale.name}" + (" reversed" if m.reversed else ""))
+    return {name: ", ".join(parts) for name, parts in out.items()}
 
 
 def _node_id(entry: Entry) -> str:

@@ -17,6 +17,7 @@ from logiccheck import __version__
 from logiccheck.diagnostics import SEVERITY_ORDER
 from logiccheck.report.extra import require_report_extra
 from logiccheck.report.report_data import ReportData
+from logiccheck.report.textsafe import html_text
 
 MAX_IDS = 100  # respondent ids listed per check before "and N more"
 MAX_ROWS = 25  # example findings shown per check
@@ -34,7 +35,17 @@ def _environment() -> Any:
         undefined=jinja2.StrictUndefined,
         trim_blocks=True,
         lstrip_blocks=True,
+        finalize=_neutral,
     )
+
+
+def _neutral(value: Any) -> Any:
+    """Every printed text has its bidirectional controls shown, not obeyed."""
+    import markupsafe
+
+    if isinstance(value, str) and not isinstance(value, markupsafe.Markup):
+        return html_text(value)
+    return value
 
 
 def _num(value: Any) -> int:
@@ -123,6 +134,65 @@ def _svg(figure: Any) -> str:
     return inline_svg(figure)
 
 
+def _margins(sections: dict[str, Any], chart: bool) -> tuple[dict[str, Any] | None, str]:
+    """The sample-against-population part (with `validate --margins`), and its chart."""
+    rows = sections.get("representativeness")
+    if not rows:
+        return None, ""
+    from logiccheck.report.weights_text import percent as _pct
+
+    rates = {(r["variable"], r["category"]): r for r in sections.get("response_rates", [])}
+    weights = sections.get("weights") or {}
+    shown = []
+    for r in rows:
+        rate = rates.get((r["variable"], r["category"]))
+        shown.append({**r, "sample": _pct(r["sample_share"]), "population": _pct(r["population_share"]),
+                      "difference": "–" if r["difference"] is None else f"{100 * r['difference']:+.1f}",
+                      "rate": "–" if rate is None else f"{_pct(rate['response_rate'])} of {rate['frame']}"})
+    svg = ""
+    if chart:
+        from logiccheck.report.margins_chart import margins_chart
+
+        svg = _svg(margins_chart(rows))
+    return {"rows": shown, "fit": list(sections.get("fit", {}).items()), "rates": bool(rates), "weights": weights,
+            "respondents": weights.get("respondents", [])}, svg
+
+
+def _scale_rows(scales: list[dict[str, Any]]) -> list[dict[str, Any]]:
+    """Per scale: the heading figures and one row per item with the item-total bar as a
+    share of half the bar (left of the centre for a negative correlation)."""
+    from logiccheck.scales.checks import ALPHA_FLOOR, MISFIT_RISE
+
+    out = []
+    for s in scales:
+        alpha = s.get("alpha")
+        rows = []
+        for item in s["items"]:
+            r = s["item_total"].get(item)
+            without = s["alpha_if_deleted"].get(item)
+            rows.append({
+                "item": item,
+                "reversed": item in s.get("reversed", []),
+                "without": "–" if without is None else f"{without:.3f}",
+                "rises": without is not None and alpha is not None and without - alpha >= MISFIT_RISE,
+                "r": "–" if r is None else f"{r:.3f}",
+                "negative": r is not None and r < 0,
+                "width": 0 if r is None else round(min(abs(r), 1.0) * 50, 1),
+            })
+        ci = s.get("alpha_ci")
+        out.append({
+            "scale": s["scale"], "title": s.get("title", ""),
+            "alpha": "–" if alpha is None else f"{alpha:.3f}",
+            "low": alpha is not None and alpha < ALPHA_FLOOR,
+            "ci": f"{ci[0]:.3f} to {ci[1]:.3f}" if ci else "–",
+            "n": s["n"], "scored": s["scored"],
+            "mean": "–" if s.get("mean") is None else f"{s['mean']:.3f}",
+            "sd": "–" if s.get("sd") is None else f"{s['sd']:.3f}",
+            "rule": s.get("rule", ""), "rows": rows,
+        })
+    return out
+
+
 def report_context(data: ReportData, *, pictures: bool = True, chart: bool = True) -> dict[str, Any]:
     """Everything the templates show, as plain values (no live objects)."""
     q = data.questionnaire
@@ -140,6 +210,7 @@ def report_context(data: ReportData, *, pictures: bool = True, chart: bool = Tru
 
         picture_svgs = [(p.name, _svg(p.figure)) for p in routing_pictures(q, data.diagnostics, legend_every=False)]
     summary = data.findings_summary()
+    margins, margins_svg = _margins(data.sections, chart)
     return {
         "title": q.spec.title or q.spec.name or q.file,
         "spec_file": q.file,
@@ -161,6 +232,9 @@ def report_context(data: ReportData, *, pictures: bool = True, chart: bool = Tru
         "settings": _settings_rows(data.settings),
         "chart_svg": chart_svg,
         "pictures": picture_svgs,
+        "margins": margins,
+        "margins_svg": margins_svg,
+        "scales": _scale_rows(data.scales),
     }
 
 

@@ -8,6 +8,7 @@ from rich.markup import escape
 
 from logiccheck.diagnostics import Diagnostic, count_by_severity
 from logiccheck.report.source import SourceCache
+from logiccheck.report.textsafe import terminal_text
 
 STYLE = {"error": "bold red", "warning": "yellow", "info": "cyan"}
 
@@ -23,11 +24,11 @@ def _marker(source: str, column: int, end_column: int | None, same_line: bool) -
 def render_diagnostic(console: Console, diag: Diagnostic, sources: SourceCache) -> None:
     sev = diag.severity.value
     head = (
-        f"[bold]{escape(diag.file)}:{diag.line}:{diag.column}[/bold] "
-        f"[{STYLE[sev]}]{sev}[/{STYLE[sev]}] [magenta]{diag.check}[/magenta] {escape(diag.message)}"
+        f"[bold]{escape(terminal_text(diag.file))}:{diag.line}:{diag.column}[/bold] "
+        f"[{STYLE[sev]}]{sev}[/{STYLE[sev]}] [magenta]{diag.check}[/magenta] {escape(terminal_text(diag.message))}"
     )
     console.print(head, highlight=False, soft_wrap=True)
-    source = sources.line(diag.file, diag.line)
+    source = terminal_text(sources.line(diag.file, diag.line), keep_tabs=True)
     if source.strip():
         same = diag.span.end_line in (None, diag.line)
         console.print(f"  [dim]{diag.line:>4} |[/dim] {escape(source)}", highlight=False, soft_wrap=True)
@@ -35,15 +36,15 @@ def render_diagnostic(console: Console, diag: Diagnostic, sources: SourceCache) 
         console.print(f"  [dim]     |[/dim] [{STYLE[sev]}]{marker}[/{STYLE[sev]}]", highlight=False, soft_wrap=True)
     for rel in diag.related:
         console.print(
-            f"  [dim]note:[/dim] {escape(rel.span.file)}:{rel.span.line}:{rel.span.column} {escape(rel.message)}",
+            f"  [dim]note:[/dim] {escape(terminal_text(rel.span.file))}:{rel.span.line}:{rel.span.column} {escape(terminal_text(rel.message))}",
             highlight=False,
             soft_wrap=True,
         )
     if diag.witness:
         shown = ", ".join(f"{k} = {v}" for k, v in diag.witness.items())
-        console.print(f"  [dim]witness:[/dim] {escape(shown)}", highlight=False, soft_wrap=True)
+        console.print(f"  [dim]witness:[/dim] {escape(terminal_text(shown))}", highlight=False, soft_wrap=True)
     for note in diag.notes:
-        console.print(f"  [dim]note:[/dim] {escape(note)}", highlight=False, soft_wrap=True)
+        console.print(f"  [dim]note:[/dim] {escape(terminal_text(note))}", highlight=False, soft_wrap=True)
 
 
 def render_lint(console: Console, diagnostics: list[Diagnostic], files: list[str], sources: SourceCache) -> None:

@@ -16,6 +16,7 @@ import pandas as pd
 
 from logiccheck.diagnostics import SEVERITY_ORDER, Diagnostic
 from logiccheck.model.questionnaire import Questionnaire
+from logiccheck.safety.text import clip
 
 ITEM_COLUMNS = ["item", "expected", "answered", "out_of_path", "missing_on_path", "invalid"]
 FINDING_COLUMNS = ["check", "severity", "respondent", "row", "item", "value", "message"]
@@ -31,6 +32,8 @@ class ReportData:
     dispositions: dict[str, int] = field(default_factory=dict)
     settings: dict[str, Any] = field(default_factory=dict)  # thresholds and policy used
     export: str | None = None  # the export's file name, when there is one
+    sections: dict[str, Any] = field(default_factory=dict)  # analyses' sections (e.g. representativeness)
+    scales: list[dict[str, Any]] = field(default_factory=list)  # validate's "scales" section
 
     @property
     def has_data(self) -> bool:
@@ -120,7 +123,7 @@ def findings_from_blocks(blocks: Iterable[Any]) -> pd.DataFrame:
             continue
         values = list(b.values) if b.values is not None else [None] * n
         if "{value}" in b.message:
-            messages: Any = [b.message.replace("{value}", v or "") for v in values]
+            messages: Any = [b.message.replace("{value}", clip(v or "")) for v in values]
         else:
             messages = b.message
         parts.append(pd.DataFrame({
@@ -161,6 +164,9 @@ def from_validation(
         extra = getattr(result, attr, None)
         if extra:
             used[attr] = extra.model_dump() if hasattr(extra, "model_dump") else extra
+    scales: list[dict[str, Any]] = []
+    for analysis in (getattr(result, "analyses", None) or {}).values():
+        scales.extend(analysis.sections.get("scales", []))
     return ReportData(
         questionnaire=q,
         diagnostics=list(diagnostics),
@@ -170,6 +176,8 @@ def from_validation(
         dispositions=_dispositions(getattr(result, "dispositions", None)),
         settings=used,
         export=export,
+        sections={k: v for a in (getattr(result, "analyses", None) or {}).values() for k, v in a.sections.items()},
+        scales=scales,
     )
 
 

@@ -16,7 +16,7 @@ from lark.indenter import DedentError
 
 from logiccheck.diagnostics import Diagnostic, Severity, Span
 from logiccheck.suggest import did_you_mean
-from logiccheck.syntax.grammar import spec_parser
+from logiccheck.syntax.grammar import SpecIndenter, spec_parser
 
 MAX_ERRORS = 20
 
@@ -30,6 +30,10 @@ _WORDS = {
     "_DEDENT": "the end of the indented block",
     "$END": "the end of the file",
     "FLAG_WORD": "a flag (gate, key, required, strict, shuffled, soft)",
+    "MIN_WORD": "`min`",
+    "SCORE_WORD": "`score`",
+    "TOP_WORD": "`top`",
+    "REVERSED": "`reversed`",
     "COMPARE": "a comparison (<, <=, >, >=, !=)",
     "EQ": "`=`",
     "MINUS": "`-`",
@@ -234,6 +238,10 @@ def _error_to_diagnostic(err: Exception, text: str, file: str) -> tuple[Diagnost
     line, column = getattr(err, "line", -1), getattr(err, "column", -1)
     token = getattr(err, "token", None)
     at_end = isinstance(err, UnexpectedEOF) or getattr(token, "type", "") == "$END"
+    if getattr(token, "type", "") == "_INDENT" and getattr(token, "end_line", None):
+        # The indent token borrows the position of the line break before it; the
+        # mistake is the indented line itself, at its first character.
+        line, column = token.end_line, token.end_column
     if not isinstance(line, int) or line < 1 or at_end:
         # The end of the input has no position of its own: it is the end of the file.
         line, column = _last_line(text)
@@ -287,7 +295,8 @@ def _dedent_line(text: str, err: DedentError) -> int:
         depth += raw.count("(") + raw.count("{") - raw.count(")") - raw.count("}")
         if not stripped or stripped.startswith("#"):
             continue
-        indent = len(raw) - len(raw.lstrip(" \t"))
+        lead = raw[: len(raw) - len(raw.lstrip(" \t"))]
+        indent = lead.count(" ") + lead.count("\t") * SpecIndenter.tab_len  # as the indenter counts
         if indent > stack[-1]:
             stack.append(indent)
         else:
@@ -317,6 +326,16 @@ def parse_text(text: str, file: str = "<spec>") -> ParseResult:
     """Parse a spec. Keeps going after an error by blanking the bad statement."""
     if text.startswith("\ufeff"):
         text = text[1:]
+    # Old Mac (CR only) and mixed line endings read as lines, not one long line.
+    text = text.replace("\r\n", "\n").replace("\r", "\n")
+    if all(not ln.strip() or ln.strip().startswith("#") for ln in text.split("\n")):
+        empty = Diagnostic(
+            check="syntax-error",
+            severity=Severity.error,
+            span=Span(file=file, line=1, column=1, end_line=1, end_column=1),
+            message="the spec is empty: it holds no statements; write at least the survey line and one item",
+        )
+        return ParseResult(None, [empty], text)
     work = text if text.endswith("\n") else text + "\n"
     lines = work.split("\n")
     diagnostics: list[Diagnostic] = []
@@ -340,7 +359,7 @@ def parse_text(text: str, file: str = "<spec>") -> ParseResult:
                 )
             else:
                 diag, bad = _error_to_diagnostic(err, "\n".join(lines), file)
-                if isinstance(err, UnexpectedToken) and err.token.type in ("_NL", "_DEDENT"):
+                if isinstance(err, UnexpectedToken) and err.token.type in ("_NL", "_DEDENT", "_INDENT"):
                     # A newline or dedent token belongs to the line it ends.
                     bad = diag.span.line
             if bad in seen:

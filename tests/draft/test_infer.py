@@ -77,7 +77,8 @@ def test_a_scale_reaching_the_nonresponse_codes_is_strict_and_lints_clean() -> N
     })
     d = draft_table(table, "s.csv")
     assert d.inferred.nonresponse == [8, 9]
-    assert "scale: single" in d.text and d.text.split("scale: single", 1)[1].splitlines()[0].endswith("strict")
+    # `scale` starts a statement, so the column's item is named `scale_`.
+    assert "scale_: single" in d.text and d.text.split("scale_: single", 1)[1].splitlines()[0].endswith("strict")
     assert [x.check for x in run_checks(load_text(d.text, "s.qlc")) if x.severity.value == "error"] == []
 
 
@@ -110,7 +111,7 @@ def test_cli_writes_the_draft_and_never_the_export(tmp_path: Path) -> None:
     assert out.read_text().startswith("# DRAFT") and "review it" in ran.stderr
     assert run_cli("lint", str(out)).returncode == 0
     refused = run_cli("draft", "--data", str(export), "--out", str(export))
-    assert refused.returncode == 2 and "the export itself" in refused.stderr
+    assert refused.returncode == 2 and "would replace the export" in refused.stderr
     assert export.read_bytes() == before
     to_stdout = run_cli("draft", "--data", str(export))
     assert to_stdout.returncode == 0 and to_stdout.stdout == out.read_text()

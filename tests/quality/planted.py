@@ -131,3 +131,45 @@ def build() -> tuple[pd.DataFrame, pd.DataFrame, dict[str, set[str]]]:
     # The frame spells e-mails with other case and stray spaces.
     frame = pd.DataFrame({"id": ids, "email": [f" {i.upper()}@Example.org " for i in ids]})
     return export, frame, expected
+
+
+def build_routed() -> tuple[pd.DataFrame, pd.DataFrame, dict[str, set[str]]]:
+    """Like `build`, with the respondents a speeder rule must leave alone: screen-outs
+    and break-offs with very short interviews, and partials. Also planted: a speeding
+    complete and a speeding partial, short routes that agree (never near-duplicates)."""
+    export, frame, expected = build()
+    rows = export.to_dict("records")
+    rng = np.random.default_rng(20261)
+
+    def blank(rid: str, **values: object) -> dict[str, object]:
+        row: dict[str, object] = dict.fromkeys(COLUMNS, "")
+        row.update(id=rid, email=f"{rid}@example.org", **values)
+        return row
+
+    extra: list[dict[str, object]] = []
+    # Screen-outs: the stop ends the interview after one question, in seconds.
+    for i in range(6):
+        extra.append(blank(f"s-minor{i}", age=int(rng.integers(8, 14)), duration=int(rng.integers(5, 15))))
+    # Break-offs: two answers and gone; identical short routes share their blanks only.
+    for i in range(6):
+        extra.append(blank(f"s-break{i}", age=40, member=1, duration=int(rng.integers(10, 40))))
+    # Partials: half the grid left blank, a normal pace.
+    for i in range(4):
+        row = clean_row(rng, f"s-part{i}")
+        row.update(member=1, visits=int(rng.integers(1, 50)), borrow=2, items_n="", why_no="")
+        grid = _varied_grid(rng)
+        row.update(dict(zip(GRID, grid[:4] + [""] * 4, strict=True)))
+        extra.append(row)
+    # Speeders among completes and partials: a few seconds per item asked.
+    extra.append(card_row("p-fast2", [5, 3, 1, 4, 2, 2, 5, 3], age=57, visits=22, overall=6, duration=120))
+    part = card_row("p-fastpart", [1, 4, 2, 5, "", "", "", ""], age=31, visits=5, borrow=2, items_n="", overall=8,
+                    duration=60)
+    extra.append(part)
+    for row in extra:
+        expected[str(row["id"])] = set()
+    expected["p-fast2"] = {"speeder"}
+    expected["p-fastpart"] = {"speeder"}
+    out = pd.DataFrame(rows + extra, columns=COLUMNS).astype(str)
+    ids = [str(i) for i in out["id"].unique() if i != "p-stranger"]
+    frame = pd.DataFrame({"id": ids, "email": [f" {i.upper()}@Example.org " for i in ids]})
+    return out, frame, expected

@@ -9,7 +9,6 @@ import pandas as pd
 import pytest
 from click.testing import CliRunner
 
-from logiccheck.atomic import atomic_write
 from logiccheck.clean.apply import reverse_audit
 from logiccheck.clean.io import file_hash, read_sheet_csv
 from logiccheck.clean.policy import CleanPolicy, PolicyError, load_policy
@@ -56,6 +55,9 @@ def test_defaults_blank_cells_and_only_flag(tmp_path: Path) -> None:
         ("x-cascade", "borrow", "out-of-path"),
         ("x-cascade", "items_n", "out-of-path"),  # borrow = yes was not allowed, so it opens nothing
         ("x-bad", "s_hours", "invalid-value"),
+        # Formula-like text is escaped in the spreadsheet outputs, and the audit says so.
+        ("x-bad", "comments", "sheet-escape"),
+        ("x-neg", "comments", "sheet-escape"),
     }
     assert len(run.outcome.cleaned) == len(read_export(data))  # flag only: nobody removed
     s = run.summary
@@ -117,17 +119,14 @@ def test_outputs_are_written_atomically(tmp_path: Path, monkeypatch: pytest.Monk
     old = (out / "summary.json").read_bytes()
 
     def broken(obj: object, path: Path) -> None:
-        def half(p: Path) -> None:
-            p.write_text('{"half": ')
-            raise KeyboardInterrupt
+        path.write_text('{"half": ')
+        raise KeyboardInterrupt
 
-        atomic_write(path, half)
-
-    monkeypatch.setattr("logiccheck.clean.run.write_json", broken)
+    monkeypatch.setattr("logiccheck.clean.run.write_json_to", broken)
     with pytest.raises(KeyboardInterrupt):
         clean_export(q, data, out, sample_frame=fr)
     assert (out / "summary.json").read_bytes() == old  # the previous file, whole
-    assert not list(out.glob(".*.part"))  # no half-written file left behind
+    assert not list(tmp_path.glob(".*.part"))  # no half-written set left behind
 
 
 def test_parquet_in_parquet_and_csv_out(tmp_path: Path) -> None:
@@ -237,6 +236,8 @@ def test_mapped_layout_renamed_columns_and_markers(tmp_path: Path) -> None:
         ("x-cascade", "borrow", "out-of-path"),
         ("x-cascade", "items_n", "out-of-path"),
         ("x-bad", "s_hours", "invalid-value"),
+        ("x-bad", "comments", "sheet-escape"),
+        ("x-neg", "comments", "sheet-escape"),
     }
     assert run.summary["findings"]["speeder"] == 1
     restored = reverse_audit(read_sheet_csv(tmp_path / "out" / "mapped.cleaned.csv"), read_sheet_csv(tmp_path / "out" / "audit.csv"))

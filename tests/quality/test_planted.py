@@ -36,29 +36,6 @@ def test_every_planted_case_and_only_it(tmp_path) -> None:  # type: ignore[no-un
     assert result.measures.loc[row, "gates_answered"] == 1 and result.measures.loc[row, "gates_due"] == 2
 
 
-def test_validate_reports_the_quality_checks(tmp_path) -> None:  # type: ignore[no-untyped-def]
-    import json
-
-    from click.testing import CliRunner
-
-    from logiccheck.cli.main import cli
-
-    export, frame, expected = build()
-    export.to_csv(tmp_path / "export.csv", index=False)
-    frame.to_csv(tmp_path / "frame.csv", index=False)
-    (tmp_path / "lib.qlc").write_text(SPEC)
-    res = CliRunner().invoke(cli, ["validate", str(tmp_path / "lib.qlc"), "--data", str(tmp_path / "export.csv"),
-                                   "--frame", str(tmp_path / "frame.csv"), "--format", "json"])
-    assert res.exit_code in (0, 1), res.output
-    quality = {"duplicate-id", "duplicate-response", "near-duplicate", "straightline", "pattern-response", "speeder",
-               "not-in-frame"}
-    got: dict[str, set[str]] = {rid: set() for rid in expected}
-    for f in json.loads(res.stdout)["findings"]:
-        if f["check"] in quality:
-            got[f["respondent"]].add(f["check"])
-    assert got == expected
-
-
 def test_near_duplicates_over_the_work_budget_are_skipped_with_a_note(tmp_path) -> None:  # type: ignore[no-untyped-def]
     from logiccheck.quality.config import QualityConfig
     from logiccheck.quality.run import near_duplicate_work

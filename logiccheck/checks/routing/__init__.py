@@ -1,3 +1,3 @@
 """Routing checks: exact answers from the solver (stage "routing", skipped by --no-solver)."""
 
-from logiccheck.checks.routing import conditions, length, reach, stops  # noqa: F401
+from logiccheck.checks.routing import conditions, length, reach, scales, stops  # noqa: F401

@@ -25,16 +25,18 @@ def subject_of(entry: Entry) -> str:
     return f"entry:{entry.index}"
 
 
-def explain(core: list[Conjunct] | None, subject: str) -> tuple[str, list[tuple[Span, str]]]:
-    """A core as words: what the statement itself needs, and what stands against it."""
+def explain(core: list[Conjunct] | None, subject: str | list[str]) -> tuple[str, list[tuple[Span, str]]]:
+    """A core as words: what the statement (or statements) itself needs, and what stands against it."""
     if not core:
         return "its conditions contradict each other", []
-    needs = [c for c in core if c.subject == subject and c.kind in ("own", "context") and c.cond]
+    own = {subject} if isinstance(subject, str) else set(subject)
+    needs = [c for c in core if c.subject in own and c.kind in ("own", "context") and c.cond]
     against = [c for c in core if c not in needs and c.kind in TELLING and c.kind != "target"]
     related = [(c.span, c.text) for c in [*needs, *against]]
     parts = []
     if needs:
-        parts.append("it needs " + _join([f"`{c.cond}` (line {c.span.line})" for c in _unique(needs)]))
+        # Several statements may need the same condition (a scale's items in one section).
+        parts.append("it needs " + _join(list(dict.fromkeys(f"`{c.cond}` (line {c.span.line})" for c in _unique(needs)))))
     if against:
         lead = "but " if needs else ""
         parts.append(lead + _join([c.text for c in _unique(against)]))

@@ -1,3 +1,3 @@
 """Static checks: what can be judged from names, codes, types and order alone."""
 
-from logiccheck.checks.static import codes, cycles, names, order  # noqa: F401
+from logiccheck.checks.static import codes, cycles, names, order, scales  # noqa: F401

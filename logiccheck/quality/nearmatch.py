@@ -1,0 +1,390 @@
+"""Exact copies and near-copies of answer vectors without comparing every pair.
+
+Answers are a respondents × items matrix of small integer codes (0 = blank; non-response
+codes are answers like any other). Two respondents are compared on the items BOTH
+answered: `compared` of them, `matched` with the same code. Their percent match is
+matched / compared (Kuriakose & Robbins 2016 compare respondents this way, over every
+item; here blanks never match). A respondent's maximum percent match is the largest
+over all others.
+
+`near_pairs` finds every pair with compared >= `min_items` and matched / compared >
+`threshold`, exactly, by a pigeonhole argument in the manner of multi-index hashing
+(Norouzi, Punjani & Fleet, "Fast exact search in Hamming space with multi-index
+hashing", 2014), adapted to blanks:
+
+* Split the items into blocks of at most s = floor(2 / (1 - threshold)) items (13 at
+  85 %). For a pair, let C_j and M_j be the compared and matching items in block j.
+  If M > t·C then sum_j (M_j - t·C_j) > 0, so some block has M_j > t·C_j, hence
+  M_j >= 1; and since C_j <= s <= 2 / (1 - t), two mismatches would give
+  M_j <= C_j - 2 <= t·C_j. So some block has a matching item and at most one
+  mismatch among the items both answered.
+* In that block the two answered patterns P and Q may differ. Each respondent gets one
+  key per position of the block: its codes (blank as a code of its own) with that
+  position left out. Pairs with P = Q and at most one mismatch, or with patterns
+  differing at one position and no mismatch, share a key. Every other pair of patterns
+  P != Q is joined the same way on the items of P ∩ Q. Either way the pair meets as a
+  candidate.
+* Candidates are then compared exactly (compared, matched), so hash collisions only
+  cost time, never a wrong answer.
+
+Work grows with the candidates, not with the square of the respondents: on answers
+with some spread (five-point items) twelve codes of a block are shared by chance
+rarely. Blocks are formed from items the routing asks of the same respondents, so
+patterns inside a block are mostly all-or-nothing; many scattered blanks make many
+patterns and slow the joins down (the result stays exact). Answers with little spread
+(yes/no items only) make many chance candidates: also slower, still exact.
+"""
+
+from __future__ import annotations
+
+import functools
+import math
+from collections.abc import Iterator
+from dataclasses import dataclass
+
+import numpy as np
+
+_MIX = np.uint64(0x9E3779B97F4A7C15)
+_MUL = np.uint64(0xBF58476D1CE4E5B9)
+# Pairs generated per batch before they are checked: bounds memory (two int64 per pair
+# plus two rows of codes per pair while checking).
+PAIR_BATCH = 1 << 20
+
+
+@dataclass
+class Pairs:
+    """Pairs of rows (a < b) with their compared and matching item counts."""
+
+    a: np.ndarray
+    b: np.ndarray
+    compared: np.ndarray
+    matched: np.ndarray
+
+    @property
+    def score(self) -> np.ndarray:
+        return self.matched / np.maximum(self.compared, 1)
+
+
+def block_size(threshold: float) -> int:
+    """The largest block size for which the pigeonhole argument holds with at most one
+    mismatch in the witness block (s·(1 - t) <= 2); a hair under the exact bound, so
+    rounding can only make blocks smaller. 0: nothing can be above the threshold."""
+    if threshold >= 1:
+        return 0
+    return max(1, math.floor(2 / (1 - threshold) - 1e-9))
+
+
+def hash_rows(codes: np.ndarray) -> np.ndarray:
+    """One 64-bit hash per row of a small-integer matrix (equal rows, equal hashes)."""
+    h = np.full(codes.shape[0], 0x84222325, dtype=np.uint64)
+    with np.errstate(over="ignore"):
+        for j in range(codes.shape[1]):
+            h ^= codes[:, j].astype(np.uint64) + _MIX + (h << np.uint64(6)) + (h >> np.uint64(2))
+            h *= _MUL
+    return h
+
+
+def runs(sorted_keys: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Start and length of every run of equal values in a sorted array."""
+    if sorted_keys.size == 0:
+        return np.zeros(0, np.int64), np.zeros(0, np.int64)
+    edge = np.flatnonzero(sorted_keys[1:] != sorted_keys[:-1]) + 1
+    starts = np.concatenate([[0], edge])
+    return starts, np.diff(np.concatenate([starts, [sorted_keys.size]]))
+
+
+def groups_of(keys: np.ndarray, rows: np.ndarray) -> Iterator[np.ndarray]:
+    """Rows sharing a key, groups of two or more, in order of their first row (`rows`
+    ascending)."""
+    order = np.argsort(keys, kind="stable")  # rows ascend, so they stay ascending inside a run
+    starts, lengths = runs(keys[order])
+    big = lengths > 1
+    for s, g in sorted(zip(starts[big].tolist(), lengths[big].tolist(), strict=True), key=lambda t: rows[order[t[0]]]):
+        yield rows[order[s : s + g]]
+
+
+def _pairs_within(members: np.ndarray, starts: np.ndarray, lengths: np.ndarray) -> Iterator[tuple[np.ndarray, np.ndarray]]:
+    """Every pair inside each run (members already in run order), in bounded batches,
+    all runs of a batch at once."""
+    keep = lengths > 1
+    starts, lengths = starts[keep], lengths[keep]
+    per_run = lengths * (lengths - 1) // 2
+    huge = per_run > PAIR_BATCH
+    for s, g in zip(starts[huge].tolist(), lengths[huge].tolist(), strict=True):
+        yield from _big_run(members[s : s + g])
+    starts, lengths, per_run = starts[~huge], lengths[~huge], per_run[~huge]
+    total = np.cumsum(per_run)
+    i = 0
+    while i < starts.size:
+        j = max(i + 1, int(np.searchsorted(total, (total[i - 1] if i else 0) + PAIR_BATCH, side="right")))
+        g = lengths[i:j]
+        # One entry per run member that has partners after it: its position and how many.
+        pos = np.repeat(starts[i:j], g) + _ramp(g)
+        after = np.repeat(g, g) - 1 - _ramp(g)
+        has = after > 0
+        pos, after = pos[has], after[has]
+        left = np.repeat(pos, after)
+        right = left + 1 + _ramp(after)
+        yield members[left], members[right]
+        i = j
+
+
+def _ramp(counts: np.ndarray) -> np.ndarray:
+    """0..c-1 for each count c, concatenated."""
+    total = int(counts.sum())
+    return np.arange(total) - np.repeat(np.cumsum(counts) - counts, counts)
+
+
+def _big_run(members: np.ndarray) -> Iterator[tuple[np.ndarray, np.ndarray]]:
+    """Pairs of one very large run, a slice of first members at a time."""
+    g = members.size
+    step = max(1, PAIR_BATCH // g)
+    for r0 in range(0, g - 1, step):
+        first = np.arange(r0, min(r0 + step, g - 1))
+        after = g - 1 - first  # partners of each first member
+        left = np.repeat(first, after)
+        yield members[left], members[left + 1 + _ramp(after)]
+
+
+def _pairs_across(
+    keys_p: np.ndarray, rows_p: np.ndarray, keys_q: np.ndarray, rows_q: np.ndarray
+) -> Iterator[tuple[np.ndarray, np.ndarray]]:
+    """Every (p, q) with equal keys, p from one set and q from the other, in batches of
+    whole keys (all keys of a batch at once)."""
+    op, oq = np.argsort(keys_p), np.argsort(keys_q)
+    kp, kq = keys_p[op], keys_q[oq]
+    at = np.minimum(np.searchsorted(kp, kq), kp.size - 1)
+    common = kq[kp[at] == kq]
+    if common.size == 0:
+        return
+    common = common[np.concatenate([[True], common[1:] != common[:-1]])]
+    lo_p, cp = np.searchsorted(kp, common, "left"), np.searchsorted(kp, common, "right")
+    lo_q, cq = np.searchsorted(kq, common, "left"), np.searchsorted(kq, common, "right")
+    cp, cq = cp - lo_p, cq - lo_q
+    total = np.cumsum(cp * cq)
+    i = 0
+    while i < common.size:
+        j = max(i + 1, int(np.searchsorted(total, (total[i - 1] if i else 0) + PAIR_BATCH, side="right")))
+        np_, nq = cp[i:j], cq[i:j]
+        left_at = np.repeat(lo_p[i:j], np_) + _ramp(np_)  # every p member of these keys
+        partners = np.repeat(nq, np_)  # how many q members each of them meets
+        left = np.repeat(left_at, partners)
+        right = np.repeat(np.repeat(lo_q[i:j], np_), partners) + _ramp(partners)
+        yield rows_p[op[left]], rows_q[oq[right]]
+        i = j
+
+
+def blocks_for(codes: np.ndarray, size: int, groups: np.ndarray | None = None) -> list[np.ndarray]:
+    """Column blocks of at most `size`. Columns with the same group label (e.g. items the
+    routing asks of the same respondents) go together, in order, so answered patterns
+    inside a block are mostly all-or-nothing; without labels, columns answered by
+    exactly the same respondents are grouped."""
+    m = codes.shape[1]
+    if m == 0 or size <= 0:
+        return []
+    if groups is None:
+        groups = column_labels(codes != 0)
+    order = np.lexsort((np.arange(m), np.asarray(groups)))
+    out: list[np.ndarray] = []
+    starts, lengths = runs(np.asarray(groups)[order])
+    for s, g in zip(starts.tolist(), lengths.tolist(), strict=True):
+        cols = order[s : s + g]
+        out.extend(cols[i : i + size] for i in range(0, g, size))
+    return out
+
+
+def column_labels(mask: np.ndarray) -> np.ndarray:
+    """One label per column of a Boolean matrix; equal columns get equal labels."""
+    packed = np.packbits(mask, axis=0)
+    _, labels = np.unique(np.array([packed[:, j].tobytes() for j in range(mask.shape[1])], dtype=object),
+                          return_inverse=True)
+    return labels.ravel()
+
+
+@functools.lru_cache(maxsize=64)
+def _weights(width: int, seed: int) -> tuple[np.ndarray, np.ndarray]:
+    """Random odd multipliers per position, and a random tag per wildcard position
+    (fixed per width, so every run hashes alike)."""
+    rng = np.random.default_rng(seed)
+    mult = rng.integers(0, 2**63, size=width, dtype=np.uint64) * np.uint64(2) + np.uint64(1)
+    tag = rng.integers(0, 2**63, size=width, dtype=np.uint64)
+    return mult, tag
+
+
+def wildcard_keys(sub: np.ndarray) -> np.ndarray:
+    """rows × positions: the row's codes with one position left out (its tag instead),
+    as a linear 64-bit hash. Two rows that agree on every position but w share key w;
+    unequal rows share a key only by a hash collision (checked away later)."""
+    mult, tag = _weights(sub.shape[1], 20140101 + sub.shape[1])
+    with np.errstate(over="ignore"):
+        terms = sub.astype(np.uint64) * mult[None, :]
+        total = terms.sum(axis=1, dtype=np.uint64)
+        return total[:, None] - terms + tag[None, :]
+
+
+def _collide(keys: np.ndarray, members: np.ndarray) -> Iterator[tuple[np.ndarray, np.ndarray]]:
+    """Pairs of members sharing a key (rows × keys per member).
+
+    The upper 32 bits of a key and the member's row are packed into one word and sorted
+    (a plain sort is about twice as fast as an argsort); rows sharing only the upper
+    bits of unequal keys become extra candidates, checked away later."""
+    width = keys.shape[1]
+    packed = (keys.ravel() >> np.uint64(32)) << np.uint64(32)
+    packed |= np.repeat(members.astype(np.uint64), width)
+    packed.sort()
+    starts, lengths = runs(packed >> np.uint64(32))
+    yield from _pairs_within((packed & np.uint64(0xFFFFFFFF)).astype(np.int64), starts, lengths)
+
+
+def candidate_pairs(
+    codes: np.ndarray, rows: np.ndarray, size: int, groups: np.ndarray | None = None
+) -> Iterator[tuple[np.ndarray, np.ndarray]]:
+    """Batches of candidate pairs (rows of `codes`): a superset of every pair that, in
+    some block, has an item both answered and at most one mismatch on the items both
+    answered (see the module docs). Pairs may repeat."""
+    for cols in blocks_for(codes[rows], size, groups):
+        sub = codes[np.ix_(rows, cols)]
+        pattern = ((sub != 0).astype(np.int64) << np.arange(len(cols), dtype=np.int64)).sum(axis=1)
+        live = pattern != 0
+        # Same codes, blanks included, except at most one position: same pattern with at
+        # most one mismatch, or patterns differing at one position with no mismatch.
+        yield from _collide(wildcard_keys(sub[live]), rows[live])
+        # Other pattern pairs: joined on the items both answered, one mismatch allowed.
+        present = np.unique(pattern[live])
+        for ip, p in enumerate(present.tolist()):
+            in_p = pattern == p
+            for qv in present[ip + 1 :].tolist():
+                common = p & qv
+                if common == 0:
+                    continue
+                shared = [k for k in range(len(cols)) if common >> k & 1]
+                in_q = pattern == qv
+                kp = wildcard_keys(sub[np.ix_(in_p, shared)])
+                kq = wildcard_keys(sub[np.ix_(in_q, shared)])
+                yield from _pairs_across(kp.ravel(), np.repeat(rows[in_p], len(shared)),
+                                         kq.ravel(), np.repeat(rows[in_q], len(shared)))
+
+
+def compare_pairs(codes: np.ndarray, a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Compared and matching item counts of each pair, exactly."""
+    compared = np.empty(a.size, np.int64)
+    matched = np.empty(a.size, np.int64)
+    step = max(1, (1 << 24) // max(1, codes.shape[1]))
+    for s in range(0, a.size, step):
+        x, y = codes[a[s : s + step]], codes[b[s : s + step]]
+        both = (x != 0) & (y != 0)
+        compared[s : s + step] = both.sum(axis=1)
+        matched[s : s + step] = (both & (x == y)).sum(axis=1)
+    return compared, matched
+
+
+def _batched(parts: Iterator[tuple[np.ndarray, np.ndarray]]) -> Iterator[tuple[np.ndarray, np.ndarray]]:
+    """Small batches joined into batches of about `PAIR_BATCH` pairs (fewer numpy calls)."""
+    held: list[tuple[np.ndarray, np.ndarray]] = []
+    count = 0
+    for a, b in parts:
+        held.append((a, b))
+        count += a.size
+        if count >= PAIR_BATCH:
+            yield np.concatenate([x for x, _ in held]), np.concatenate([y for _, y in held])
+            held, count = [], 0
+    if held:
+        yield np.concatenate([x for x, _ in held]), np.concatenate([y for _, y in held])
+
+
+def near_pairs(codes: np.ndarray, threshold: float, min_items: int, groups: np.ndarray | None = None) -> Pairs:
+    """Every pair of rows compared on at least `min_items` items with a percent match
+    above `threshold`, exactly (see the module docs). `groups`: a label per column;
+    columns with one label are blocked together (speed only, never the result)."""
+    size = block_size(threshold)
+    rows = np.flatnonzero((codes != 0).sum(axis=1) >= max(1, min_items))
+    found: list[tuple[np.ndarray, ...]] = []
+    if size and rows.size > 1:
+        seen = np.zeros(0, np.int64)
+        n = np.int64(codes.shape[0])
+        for a, b in _batched(candidate_pairs(codes, rows, size, groups)):
+            lo, hi = np.minimum(a, b), np.maximum(a, b)
+            key = np.unique(lo.astype(np.int64) * n + hi)
+            key = key[(key // n) != (key % n)]  # a row never pairs with itself
+            key = key[~np.isin(key, seen, assume_unique=True)] if seen.size else key
+            if key.size == 0:
+                continue
+            lo, hi = key // n, key % n
+            compared, matched = compare_pairs(codes, lo, hi)
+            keep = (compared >= min_items) & (matched / np.maximum(compared, 1) > threshold)
+            if keep.any():
+                found.append((lo[keep], hi[keep], compared[keep], matched[keep]))
+                seen = np.union1d(seen, key[keep])
+    if not found:
+        empty = np.zeros(0, np.int64)
+        return Pairs(empty, empty, empty, empty)
+    a, b, c, m = (np.concatenate(parts) for parts in zip(*found, strict=True))
+    order = np.lexsort((b, a))
+    return Pairs(a[order], b[order], c[order], m[order])
+
+
+@dataclass
+class Best:
+    """Per respondent: the best partner among the pairs found (-1: none), its score and
+    the number of items compared."""
+
+    partner: np.ndarray
+    score: np.ndarray
+    compared: np.ndarray
+
+
+def best_partners(pairs: Pairs, n: int) -> Best:
+    """Each respondent's highest-scoring pair; ties go to the partner on the earliest row."""
+    partner = np.full(n, -1, np.int64)
+    score = np.full(n, np.nan)
+    compared = np.zeros(n, np.int64)
+    if pairs.a.size:
+        me = np.concatenate([pairs.a, pairs.b])
+        other = np.concatenate([pairs.b, pairs.a])
+        s = np.concatenate([pairs.score, pairs.score])
+        c = np.concatenate([pairs.compared, pairs.compared])
+        order = np.lexsort((other, -s, me))
+        first = np.concatenate([[True], me[order][1:] != me[order][:-1]])
+        pick = order[first]
+        partner[me[pick]] = other[pick]
+        score[me[pick]] = s[pick]
+        compared[me[pick]] = c[pick]
+    return Best(partner, score, compared)
+
+
+def max_match_of(codes: np.ndarray, rows: np.ndarray, min_items: int) -> np.ndarray:
+    """The maximum percent match of the given rows against every other row, by direct
+    comparison (cost: len(rows) × respondents × items): the distribution of the
+    statistic estimated on a sample. NaN where no pair reaches `min_items`."""
+    out = np.full(rows.size, np.nan)
+    answered = codes != 0
+    for i, r in enumerate(rows.tolist()):
+        both = answered & answered[r]
+        compared = both.sum(axis=1)
+        matched = (both & (codes == codes[r])).sum(axis=1)
+        compared[r] = 0
+        ok = compared >= min_items
+        if ok.any():
+            out[i] = float((matched[ok] / compared[ok]).max())
+    return out
+
+
+def exact_groups(codes: np.ndarray, min_answered: int) -> list[np.ndarray]:
+    """Groups (two or more rows, ascending) with identical answer vectors, the blanks in
+    the same places, among rows with at least `min_answered` answers: one hash per row,
+    then an exact check inside each group."""
+    rows = np.flatnonzero((codes != 0).sum(axis=1) >= max(1, min_answered))
+    out: list[np.ndarray] = []
+    for group in groups_of(hash_rows(codes[rows]), rows):
+        same = (codes[group] == codes[group[0]]).all(axis=1)
+        if same.all():
+            out.append(group)
+            continue
+        # A hash collision (practically never): split the group exactly.
+        _, inverse = np.unique(codes[group], axis=0, return_inverse=True)
+        for k in np.unique(inverse.ravel()):
+            part = group[inverse.ravel() == k]
+            if part.size > 1:
+                out.append(part)
+    out.sort(key=lambda g: int(g[0]))
+    return out

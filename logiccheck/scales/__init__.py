@@ -1,0 +1,1 @@
+"""Scales: items scored together as one composite (reliability, misfit, scores)."""

@@ -1,0 +1,1 @@
+"""The language server for `.qlc` specs (`logiccheck server`)."""

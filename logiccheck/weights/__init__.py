@@ -1,0 +1,1 @@
+"""Population margins: representativeness of the kept respondents and raked weights."""
