@@ -20,12 +20,7 @@ from logiccheck.checks.data_context import DataContext
 from logiccheck.checks.data_runner import run_data_checks
 from logiccheck.config import Config, ConfigError, config_for
 from logiccheck.data.dispositions import tally
-<<<<<<< HEAD
-from logiccheck.data.findings import FindingBlock
 from logiccheck.data.frame import Cells, Layout, type_cells
-=======
-from logiccheck.data.frame import Layout
->>>>>>> main
 from logiccheck.data.mapping import DataMapping, MappingError, check_mapping, load_mapping
 from logiccheck.data.readers import (
     DELIMITER_NAMES,
@@ -279,12 +274,7 @@ def _run(
     result.measures = result.measures.assign(disposition=disposition)
     if mapping.frame is not None:
         result.sample_frame = read_cells(mapping.frame)
-<<<<<<< HEAD
     ctx = _context(q, result, raw, config, mapping, quality, validator)
-    result.blocks.extend(_quality_adapter(q, result, raw, quality, ctx, validator))
-    result.blocks.extend(run_data_checks(ctx))
-=======
-    ctx = _context(q, result, raw, config, mapping, quality)
     if opts.margins is not None:
         ctx.options["margins"] = opts.margins
     # A check turned off in [checks] is not run at all (some cost real time on large exports).
@@ -293,7 +283,6 @@ def _run(
     near = ctx.memo.get("quality.near")
     if near is not None:
         result.match = MatchScores(near.score, near.partner, near.compared)
->>>>>>> main
     result.analyses = run_analyses(ctx)
     result.notes.extend(ctx.notes)
     for analysis in result.analyses.values():
@@ -384,52 +373,3 @@ def _context(
         sample_frame=result.sample_frame,
         options={"settings": config},
     )
-<<<<<<< HEAD
-
-
-def _typed_frame(result: PipelineResult, ctx: DataContext, raw: pa.Table, validator: Validator) -> pd.DataFrame:
-    """The typed frame the older quality path reads (values where valid, NaN elsewhere;
-    text items as text), built from the context's accessors."""
-    assert result.layout is not None
-    cols: dict[str, object] = {"id": np.asarray(result.ids, dtype=object)}
-    for name, plan in result.layout.plans.items():
-        if plan.kind == "multi":
-            for v in plan.options:
-                cols[f"{name}_{v}"] = ctx.value_of(f"{name}_{v}")
-        elif plan.kind == "value":
-            cols[name] = ctx.value_of(name)
-        elif plan.kind == "text" and not plan.missing:
-            texts = column_texts(raw, plan.columns[0])
-            valid = type_cells(plan, raw.select(plan.columns), validator.mapping, validator.memo).valid
-            cols[name] = pd.array([t if ok else None for t, ok in zip(texts, valid.tolist(), strict=False)], dtype="string")
-    return pd.DataFrame(cols)
-
-
-def _quality_adapter(
-    q: Questionnaire, result: PipelineResult, raw: pa.Table, quality: QualityConfig, ctx: DataContext, validator: Validator
-) -> list[FindingBlock]:
-    """The quality checks not yet written as `@data_check` units, run on the same route
-    state, typed frame and dispositions (remove once they are units)."""
-    from logiccheck.quality.run import run_quality
-
-    if result.respondents == 0 or result.state is None or result.layout is None:
-        return []
-    frame = _typed_frame(result, ctx, raw, validator)
-    for c in (quality.speed.duration_column, quality.frame.email_column):
-        if c in raw.column_names and c not in frame.columns:
-            frame[c] = column_texts(raw, c)
-    try:
-        found = run_quality(q, frame, quality, result.sample_frame, id_column="id", state=result.state,
-                            dispositions=pd.Series(result.disposition, index=result.state.ids))
-    except (ValueError, KeyError) as err:
-        result.notes.append(f"quality checks not run: {err}")
-        return []
-    result.match = found.match
-    result.notes.extend(found.notes)
-    return [
-        FindingBlock(f.check, f.severity, f.item, f.message, np.array([(f.row or 1) - 1]),
-                     np.array([f.respondent], dtype=object), None if f.value is None else [f.value])
-        for f in found.findings
-    ]
-=======
->>>>>>> main
