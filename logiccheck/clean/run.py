@@ -40,7 +40,7 @@ def _repair_hints(q: Questionnaire, result: PipelineResult, config: QualityConfi
     assert state is not None
     failing = sorted({int(r) for m in state.checks_failed.values() for r in m.nonzero()[0]})
     hints: list[dict[str, Any]] = []
-    if not failing or result.frame is None:
+    if not failing:
         return hints
     frame = _by_spec_name(result)
     repairer = Repairer(q, config.repair.weights, timeout_ms=config.repair.timeout_ms)

@@ -17,7 +17,7 @@ from logiccheck.diagnostics import Severity
 from logiccheck.loader import Loaded, SpecReadError, load_file
 from logiccheck.pipeline import INPUT_ERRORS, PipelineResult, RunOptions, run_pipeline
 from logiccheck.report.data_csv import items_csv, write_csv_dir
-from logiccheck.report.data_json import validation_json
+from logiccheck.report.data_json import write_validation_json
 from logiccheck.report.data_text import render_validation
 
 DATA_FORMATS = ["text", "json", "csv", "sarif", "junit", "github", "html"]
@@ -91,7 +91,10 @@ def emit_validation(
 
         click.echo(emit_findings(result, fmt, loaded.questionnaire if loaded else None, Severity(fail_on or "error")))
     elif fmt == "json":
-        click.echo(validation_json(result))
+        out_bytes = click.get_binary_stream("stdout")
+        write_validation_json(result, out_bytes.write)
+        out_bytes.write(b"\n")
+        out_bytes.flush()
     elif fmt == "csv":
         if out:
             paths = write_csv_dir(result, out)

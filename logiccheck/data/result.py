@@ -37,6 +37,7 @@ class ValidationResult:
     has_value: np.ndarray | None = None
     valid: np.ndarray | None = None
     frame: pd.DataFrame | None = None  # the typed frame (values where valid, NaN otherwise)
+    nonresponse: np.ndarray | None = None  # valid non-response codes, respondents × items (with keep_cells)
     missing_columns: list[tuple[str, str]] = field(default_factory=list)
     unknown_columns: list[str] = field(default_factory=list)
     # Items whose routing reads an item with a missing column → those items: not judged.
@@ -97,8 +98,9 @@ class ValidationResult:
             {"id": self.ids, "due": self.due[:, j], "has_value": self.has_value[:, j], "valid": self.valid[:, j]}
         )
 
-    def to_json(self) -> dict[str, Any]:
-        """docs/formats.md: respondents, items, findings, dispositions."""
+    def to_json(self, findings: Any = None) -> dict[str, Any]:
+        """docs/formats.md: respondents, items, findings, dispositions. `findings`, when
+        given, stands in for the findings list (a writer that streams them)."""
         counts = ("expected", "answered", "out_of_path", "missing_on_path", "invalid")
         items = [
             {"item": r["item"], **{k: int(r[k]) for k in counts}, "over_expected": bool(r["over_expected"])}
@@ -107,7 +109,7 @@ class ValidationResult:
         return {
             "respondents": int(self.respondents),
             "items": items,
-            "findings": [f.to_json() for f in self.findings],
+            "findings": [f.to_json() for f in self.findings] if findings is None else findings,
             "dispositions": dict(self.dispositions),
             "summary": self.severity_counts(),
         }

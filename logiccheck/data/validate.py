@@ -174,13 +174,34 @@ def table_from_frame(frame: pd.DataFrame) -> pa.Table:
     return pa.table(cols)
 
 
+def _joined_rows(parts: list[np.ndarray], k: int) -> np.ndarray:
+    """Chunks' respondents × items arrays as one, releasing each chunk as it is copied
+    (so joining costs one extra chunk, not a second copy of the whole)."""
+    if not parts:
+        return np.zeros((0, k), dtype=bool)
+    out = np.empty((sum(p.shape[0] for p in parts), parts[0].shape[1]), dtype=parts[0].dtype)
+    start = 0
+    parts.reverse()
+    while parts:
+        part = parts.pop()
+        out[start : start + part.shape[0]] = part
+        start += part.shape[0]
+    return out
+
+
 class Validator:
-    def __init__(self, q: Questionnaire, mapping: DataMapping, header: list[str], *, keep_cells: bool) -> None:
+    def __init__(
+        self, q: Questionnaire, mapping: DataMapping, header: list[str], *, keep_cells: bool, keep_frame: bool | None = None
+    ) -> None:
+        """`keep_frame` (default: as `keep_cells`) keeps the typed pandas frame of every
+        cell; the pipeline does not, and types a column again from its cells when asked."""
         self.q = q
         self.mapping = mapping
         self.layout: Layout = plan_layout(q, mapping, header)
         self.evaluator = Evaluator(q, self.layout)
         self.keep = keep_cells
+        self.keep_frame = keep_cells if keep_frame is None else keep_frame
+        self.memo: dict[tuple, Verdicts] = {}  # verdicts per distinct text, by `judge_key`
         self.items = [e.name for e in q.items() if e.stmt.type.kind != "note" and e.name in self.layout.plans]
         self.gates = np.array([q.symbols[i].stmt.flags.gate for i in self.items], dtype=bool)
         self.stop_names = [e.name for e in q.entries if e.kind == "stop"]
@@ -228,12 +249,12 @@ class Validator:
         stops: list[np.ndarray] = []
         durations: list[np.ndarray] = []
         measures: list[np.ndarray] = []
-        kept: dict[str, list[np.ndarray]] = {"due": [], "has": [], "valid": []}
+        kept: dict[str, list[np.ndarray]] = {"due": [], "has": [], "valid": [], "nr": []}
         frames: list[pd.DataFrame] = []
         offset = 0
         t_read = t_eval = 0.0
         it = iter(chunks)
-        memo: dict[tuple, Verdicts] = {}  # verdicts per distinct text, by `judge_key`
+        memo = self.memo
         while True:
             t0 = time.perf_counter()
             table = next(it, None)
@@ -249,7 +270,7 @@ class Validator:
             n_due = np.zeros(rows, dtype=np.int32)
             gates_due = np.zeros(rows, dtype=np.int32)
             gates_answered = np.zeros(rows, dtype=np.int32)
-            cols_due, cols_has, cols_valid = [], [], []
+            cols_due, cols_has, cols_valid, cols_nr = [], [], [], []
             for j, item in enumerate(self.items):
                 c = cells[item]
                 d = state.env.due[item]
@@ -271,6 +292,7 @@ class Validator:
                     cols_due.append(d)
                     cols_has.append(c.present)
                     cols_valid.append(c.valid)
+                    cols_nr.append(c.nr if c.nr is not None else np.zeros(rows, dtype=bool))
                 blocks += self._item_blocks(
                     item, c, d, state, table, offset, chunk_ids, n_p > n_valid, n_d > n_on
                 )
@@ -287,7 +309,9 @@ class Validator:
                 kept["due"].append(np.column_stack(cols_due) if cols_due else empty)
                 kept["has"].append(np.column_stack(cols_has) if cols_has else empty)
                 kept["valid"].append(np.column_stack(cols_valid) if cols_valid else empty)
-                frames.append(self._typed(cells, chunk_ids, table))
+                kept["nr"].append(np.column_stack(cols_nr) if cols_nr else empty)
+                if self.keep_frame:
+                    frames.append(self._typed(cells, chunk_ids, table))
             offset += rows
             t_eval += time.perf_counter() - t1
             if progress is not None:
@@ -342,9 +366,10 @@ class Validator:
             source=source,
         )
         if self.keep:
-            result.due = np.concatenate(kept["due"]) if kept["due"] else np.zeros((0, k), dtype=bool)
-            result.has_value = np.concatenate(kept["has"]) if kept["has"] else np.zeros((0, k), dtype=bool)
-            result.valid = np.concatenate(kept["valid"]) if kept["valid"] else np.zeros((0, k), dtype=bool)
+            result.due = _joined_rows(kept.pop("due"), k)
+            result.has_value = _joined_rows(kept.pop("has"), k)
+            result.valid = _joined_rows(kept.pop("valid"), k)
+            result.nonresponse = _joined_rows(kept.pop("nr"), k)
             result.frame = pd.concat(frames, ignore_index=True) if frames else None
         return result
 

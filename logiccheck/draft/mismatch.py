@@ -69,13 +69,16 @@ def alive_before(ctx: DataContext, name: str) -> np.ndarray:
     return stop_at > at
 
 
-def compare(ctx: DataContext, vars_: list[Var], j: int) -> tuple[Mined, int] | None:
+def compare(ctx: DataContext, vars_: list[Var], j: int, need: int = 0) -> tuple[Mined, int] | None:
     """The best mined condition for item `j` and how many respondents its own routing
-    explains; None when nobody answered it."""
+    explains; None when nobody answered it, or when its own routing leaves fewer than
+    `need` respondents unexplained (no condition can then gain `need`: mining is skipped)."""
     answered = ctx.has_value[:, j]
     if not answered.any():
         return None
     own = int((ctx.due[:, j] == answered).sum())
+    if ctx.n - own < need:
+        return None
     mined = mine(vars_[:j], answered, alive_before(ctx, ctx.items[j]))
     return mined, own
 
@@ -107,18 +110,23 @@ def routing_mismatch(ctx: DataContext) -> Iterator[Hits]:
     n = ctx.n
     if n == 0:
         return
+    need = max(MISMATCH_ROWS, MISMATCH_GAIN * n)
+    # Typing every item for the miner costs a pass over the export: skip it when every
+    # item's own routing explains all but fewer than `need` respondents.
+    if all(n - int((ctx.due[:, j] == ctx.has_value[:, j]).sum()) < need for j in range(len(ctx.items))):
+        return
     vars_ = context_vars(ctx)
     by_name = {v.name: v for v in vars_}
     none = np.array([], dtype=np.int64)
     for j, name in enumerate(ctx.items):
-        got = compare(ctx, vars_, j)
+        got = compare(ctx, vars_, j, need)
         if got is None:
             continue
         mined, own = got
         if not mined.condition.literals:
             continue
         gain = mined.explained - own
-        if gain < max(MISMATCH_ROWS, MISMATCH_GAIN * n) or (n - mined.explained) > MISMATCH_ERRORS * (n - own):
+        if gain < need or (n - mined.explained) > MISMATCH_ERRORS * (n - own):
             continue
         spec = own_condition(ctx, name)
         said = f"its condition `{spec}`" if spec else "the spec, which asks it of everyone,"

@@ -13,13 +13,14 @@ from typing import Any
 import numpy as np
 import pandas as pd
 import pyarrow as pa
+import pyarrow.compute as pc
 
 from logiccheck.checks.analyses import Analysis, run_analyses
 from logiccheck.checks.data_context import DataContext
 from logiccheck.checks.data_runner import run_data_checks
 from logiccheck.config import Config, ConfigError, config_for
 from logiccheck.data.dispositions import tally
-from logiccheck.data.frame import Layout
+from logiccheck.data.frame import Cells, Layout, type_cells
 from logiccheck.data.mapping import DataMapping, MappingError, check_mapping, load_mapping
 from logiccheck.data.readers import (
     DELIMITER_NAMES,
@@ -112,8 +113,8 @@ class PipelineResult(ValidationResult):
     def disposition_counts(self) -> dict[str, int]:
         return dict(self.dispositions)
 
-    def to_json(self) -> dict[str, Any]:
-        out = super().to_json()
+    def to_json(self, findings: Any = None) -> dict[str, Any]:
+        out = super().to_json(findings)
         for analysis in self.analyses.values():
             for key, value in analysis.sections.items():
                 out.setdefault(key, value)
@@ -155,8 +156,42 @@ def _quality(opts: RunOptions, config: Config, mapping: DataMapping) -> QualityC
 
 def _kept(chunks: Iterator[pa.Table], store: list[pa.Table]) -> Iterator[pa.Table]:
     for chunk in chunks:
-        store.append(chunk)
         yield chunk
+        store.append(compact(chunk))
+
+
+def _narrowest(lo: int, hi: int) -> pa.DataType | None:
+    for t, lim in ((pa.int8(), 1 << 7), (pa.int16(), 1 << 15), (pa.int32(), 1 << 31)):
+        if -lim <= lo and hi < lim:
+            return t
+    return None
+
+
+def _compact_array(arr: pa.Array) -> pa.Array:
+    if pa.types.is_dictionary(arr.type):
+        narrow = _narrowest(0, len(arr.dictionary))
+        if narrow is None or arr.type.index_type.bit_width <= narrow.bit_width:
+            return arr
+        return pa.DictionaryArray.from_arrays(arr.indices.cast(narrow), arr.dictionary)
+    if pa.types.is_integer(arr.type) and arr.type.bit_width > 8 and len(arr) > arr.null_count:
+        bounds = pc.min_max(arr)
+        narrow = _narrowest(bounds["min"].as_py(), bounds["max"].as_py())
+        if narrow is not None and narrow.bit_width < arr.type.bit_width:
+            return arr.cast(narrow)
+    return arr
+
+
+def compact(table: pa.Table) -> pa.Table:
+    """The same cells in less memory: dictionary indices and integers in the narrowest
+    integer type that holds them (a column of five codes costs a byte a cell, not four
+    or eight). Texts and values read back unchanged; chunks of one column may differ in
+    width and are widened to one type when joined."""
+    columns = []
+    for col in table.columns:
+        chunks = [_compact_array(c) for c in col.chunks]
+        types = {c.type for c in chunks}
+        columns.append(pa.chunked_array(chunks) if len(types) == 1 else col)
+    return pa.table(columns, names=table.column_names)
 
 
 def _joined(parts: list[pa.Table], header: list[str]) -> pa.Table:
@@ -222,7 +257,7 @@ def _run(
         if used_delimiter not in (None, ",") and fmt not in ("tsv", "tab"):
             how = "as given" if delimiter else "detected from the header line; set --delimiter to override"
             notes.append(f"{export.path.name}: read as {DELIMITER_NAMES[used_delimiter]}-delimited ({how})")
-    validator = Validator(q, mapping, header, keep_cells=True)
+    validator = Validator(q, mapping, header, keep_cells=True, keep_frame=False)
     base = validator.run(_kept(chunks, kept), name, opts.progress)
     raw = _joined(kept, header)
     result = PipelineResult(**{f.name: getattr(base, f.name) for f in dataclasses.fields(ValidationResult)})
@@ -239,7 +274,7 @@ def _run(
     result.measures = result.measures.assign(disposition=disposition)
     if mapping.frame is not None:
         result.sample_frame = read_cells(mapping.frame)
-    ctx = _context(q, result, raw, config, mapping, quality)
+    ctx = _context(q, result, raw, config, mapping, quality, validator)
     if opts.margins is not None:
         ctx.options["margins"] = opts.margins
     # A check turned off in [checks] is not run at all (some cost real time on large exports).
@@ -258,17 +293,59 @@ def _run(
     return result
 
 
-def _context(
-    q: Questionnaire, result: PipelineResult, raw: pa.Table, config: Config, mapping: DataMapping, quality: QualityConfig
-) -> DataContext:
-    frame = result.frame if result.frame is not None else pd.DataFrame(index=range(result.respondents))
-    n = result.respondents
-    texts: dict[str, np.ndarray | None] = {}
+def _typed_values(raw: pa.Table, validator: Validator, n: int) -> Callable[[str], np.ndarray]:
+    """`value_of` for the context: a spec name's (or a multi option's `NAME_V`) values
+    where valid, NaN elsewhere, typed from the kept cells when asked (with the run's
+    verdicts per distinct text), so no typed copy of every cell is held."""
+    plans = validator.layout.plans
+    options = {
+        f"{name}_{v}": (name, j)
+        for name, plan in plans.items()
+        if plan.kind == "multi"
+        for j, v in enumerate(plan.options)
+    }
+    last: dict[str, Cells] = {}  # the last multi typed: its options are asked one after another
+
+    def cells(name: str) -> Cells:
+        if name not in last:
+            plan = plans[name]
+            last.clear()
+            last[name] = type_cells(plan, raw.select([c for c in plan.columns if c in raw.column_names]),
+                                    validator.mapping, validator.memo)
+        return last[name]
 
     def value_of(name: str) -> np.ndarray:
-        if name in frame.columns and name != "id":
-            return pd.to_numeric(frame[name], errors="coerce").to_numpy(dtype=np.float64, na_value=np.nan)
+        plan = plans.get(name)
+        if name != "id" and plan is not None and not plan.missing:
+            if plan.kind == "value":
+                c = type_cells(plan, raw.select(plan.columns), validator.mapping, validator.memo)
+                assert c.value is not None
+                return np.where(c.valid, c.value, np.nan)
+            if plan.kind == "text":
+                c = type_cells(plan, raw.select(plan.columns), validator.mapping, validator.memo)
+                texts = pd.Series(column_texts(raw, plan.columns[0]), dtype=object)
+                return np.where(c.valid, pd.to_numeric(texts, errors="coerce").to_numpy(dtype=np.float64), np.nan)
+        if name in options:
+            owner, j = options[name]
+            c = cells(owner)
+            assert c.chosen is not None
+            return np.where(c.valid, c.chosen[:, j].astype(np.float64), np.nan)
         return np.full(n, np.nan)
+
+    return value_of
+
+
+def _context(
+    q: Questionnaire,
+    result: PipelineResult,
+    raw: pa.Table,
+    config: Config,
+    mapping: DataMapping,
+    quality: QualityConfig,
+    validator: Validator,
+) -> DataContext:
+    texts: dict[str, np.ndarray | None] = {}
+    value_of = _typed_values(raw, validator, result.respondents)
 
     def text_of(column: str) -> np.ndarray | None:
         if column not in texts:

@@ -18,8 +18,8 @@ def state_from_validation(q: Questionnaire, result: ValidationResult) -> RouteSt
         raise ValueError("validate with keep_cells=True to run the quality checks on its result")
     n = result.respondents
     nr_codes = [o.value for o in q.nonresponse]
-    nonresponse = np.zeros_like(result.valid)
-    for j, name in enumerate(result.items):
+    nonresponse = result.nonresponse if result.nonresponse is not None else np.zeros_like(result.valid)
+    for j, name in enumerate(result.items if result.nonresponse is None else []):
         entry = q.symbols[name]
         if result.frame is not None and name in result.frame.columns and q.allows_nonresponse(entry.stmt):
             values = result.frame[name].to_numpy(dtype=float, na_value=np.nan)

@@ -46,30 +46,50 @@ def answered_matrix(state: RouteState, config: CompletenessConfig) -> np.ndarray
     return answered
 
 
+# Respondents per block when counting: bounds the temporaries to a block's worth of cells.
+BLOCK_ROWS = 16_384
+
+
 def measures(q: Questionnaire, state: RouteState, config: CompletenessConfig) -> pd.DataFrame:
-    keep = _substantive(q, state)
-    due = state.due[:, keep]
-    answered = answered_matrix(state, config)[:, keep]
-    names = [name for name, k in zip(state.items, keep, strict=True) if k]
+    keep = np.flatnonzero(_substantive(q, state))
+    names = [state.items[j] for j in keep]
     unknown = sorted(set(config.weights) - set(names))
     if unknown:
         raise RuleError(f"[quality.completeness.weights]: no item is called {unknown[0]!r}")
     w = np.array([config.weights.get(name, 1.0) for name in names], dtype=float)
     gates = np.array([q.symbols[name].stmt.flags.gate for name in names], dtype=bool)
-    due_count = due.sum(axis=1)
-    answered_count = answered.sum(axis=1)
-    wdue = due.astype(float) @ w
+    n = len(state.ids)
+    due_count = np.zeros(n, np.int64)
+    answered_count = np.zeros(n, np.int64)
+    gates_due = np.zeros(n, np.int64)
+    gates_answered = np.zeros(n, np.int64)
+    wdue = np.zeros(n, np.float64)
+    wanswered = np.zeros(n, np.float64)
+    # Row blocks of the route matrices, so no respondents × items copy of the whole export
+    # is made (a million × 300 float matrix alone is 2.4 GB).
+    for start in range(0, n, BLOCK_ROWS):
+        rows = slice(start, start + BLOCK_ROWS)
+        due = state.due[rows][:, keep]
+        answered = due & state.valid[rows][:, keep]
+        if not config.nonresponse_counts_as_answered:
+            answered &= ~state.nonresponse[rows][:, keep]
+        due_count[rows] = due.sum(axis=1)
+        answered_count[rows] = answered.sum(axis=1)
+        gates_due[rows] = due[:, gates].sum(axis=1)
+        gates_answered[rows] = answered[:, gates].sum(axis=1)
+        wdue[rows] = due @ w
+        wanswered[rows] = answered @ w
     with np.errstate(invalid="ignore", divide="ignore"):
         share = np.where(due_count > 0, answered_count / np.maximum(due_count, 1), 1.0)
-        wshare = np.where(wdue > 0, (answered.astype(float) @ w) / np.where(wdue > 0, wdue, 1), 1.0)
+        wshare = np.where(wdue > 0, wanswered / np.where(wdue > 0, wdue, 1), 1.0)
     return pd.DataFrame(
         {
             "answered_share": share,
             "answered_count": answered_count,
             "due_count": due_count,
             "weighted_share": wshare,
-            "gates_answered": answered[:, gates].sum(axis=1),
-            "gates_due": due[:, gates].sum(axis=1),
+            "gates_answered": gates_answered,
+            "gates_due": gates_due,
         }
     )
 
