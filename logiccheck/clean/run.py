@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import dataclasses
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -76,13 +77,12 @@ def _markers(mapping: DataMapping) -> set[str]:
 def _weights_after_policy(q: Questionnaire, result: PipelineResult, kept: np.ndarray, opts: RunOptions) -> Any:
     """Weights raked again over the respondents the cleaned export keeps, so their mean is
     1 and the margins hold in the file handed on (the policy removed some)."""
-    from logiccheck.pipeline.run import _context
     from logiccheck.weights.analysis import weights_analysis
     from logiccheck.weights.margins import Margins, load_margins
 
-    assert result.export is not None and result.config is not None and result.mapping is not None
-    ctx = _context(q, result, result.export, result.config, result.mapping, result.quality_config or QualityConfig())
-    ctx.disposition = np.where(kept, np.asarray(result.disposition, dtype=object), "(removed by the policy)")
+    assert result.context is not None
+    removed = np.where(kept, np.asarray(result.disposition, dtype=object), "(removed by the policy)")
+    ctx = dataclasses.replace(result.context, disposition=removed, options=dict(result.context.options), memo={}, notes=[])
     margins = opts.margins
     ctx.options["margins"] = margins if isinstance(margins, Margins) or margins is None else load_margins(margins, q)
     return weights_analysis(ctx)

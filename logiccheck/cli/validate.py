@@ -6,7 +6,7 @@ import dataclasses
 import sys
 import time
 from pathlib import Path
-from typing import Any
+from typing import Any, BinaryIO
 
 import click
 from rich.progress import BarColumn, Progress, SpinnerColumn, TextColumn, TimeElapsedColumn
@@ -91,7 +91,7 @@ def emit_validation(
 
         click.echo(emit_findings(result, fmt, loaded.questionnaire if loaded else None, Severity(fail_on or "error")))
     elif fmt == "json":
-        out_bytes = click.get_binary_stream("stdout")
+        out_bytes: BinaryIO = sys.stdout.buffer
         write_validation_json(result, out_bytes.write)
         out_bytes.write(b"\n")
         out_bytes.flush()

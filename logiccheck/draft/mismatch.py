@@ -69,7 +69,7 @@ def alive_before(ctx: DataContext, name: str) -> np.ndarray:
     return stop_at > at
 
 
-def compare(ctx: DataContext, vars_: list[Var], j: int, need: int = 0) -> tuple[Mined, int] | None:
+def compare(ctx: DataContext, vars_: list[Var], j: int, need: float = 0) -> tuple[Mined, int] | None:
     """The best mined condition for item `j` and how many respondents its own routing
     explains; None when nobody answered it, or when its own routing leaves fewer than
     `need` respondents unexplained (no condition can then gain `need`: mining is skipped)."""

@@ -95,6 +95,7 @@ class PipelineResult(ValidationResult):
     match: Any = None  # near-duplicate scores, where computed
     sample_frame: pd.DataFrame | None = None
     analyses: dict[str, Analysis] = field(default_factory=dict)
+    context: DataContext | None = None  # what the checks read; `clean` re-runs the weights on it
 
     def cells(self) -> pd.DataFrame:
         """Every cell of the export as text ("" where blank), columns in file order."""
@@ -275,6 +276,7 @@ def _run(
     if mapping.frame is not None:
         result.sample_frame = read_cells(mapping.frame)
     ctx = _context(q, result, raw, config, mapping, quality, validator)
+    result.context = ctx
     if opts.margins is not None:
         ctx.options["margins"] = opts.margins
     # A check turned off in [checks] is not run at all (some cost real time on large exports).

@@ -9,7 +9,7 @@ byte for byte, as `json.dumps(result.to_json(), indent=2, ensure_ascii=False)`.
 from __future__ import annotations
 
 import json
-from collections.abc import Callable, Iterator
+from collections.abc import Callable, Iterator, Sequence
 from json.encoder import encode_basestring  # type: ignore[attr-defined]
 
 import numpy as np
@@ -70,12 +70,12 @@ def _literal(text: str | None) -> str:
     return json.dumps(text, ensure_ascii=False)
 
 
-def _texts(values: list[str | None] | np.ndarray, at: np.ndarray) -> pa.Array:
+def _texts(values: Sequence[str | None] | np.ndarray, at: np.ndarray) -> pa.Array:
     picked = [values[i] for i in at.tolist()]
     return pa.array([None if v is None else str(v) for v in picked], pa.string())
 
 
-def _plain(values: list[str | None] | np.ndarray | None) -> bool:
+def _plain(values: Sequence[str | None] | np.ndarray | None) -> bool:
     return values is None or all(v is None or isinstance(v, str) for v in values)
 
 
