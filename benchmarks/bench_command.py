@@ -32,34 +32,7 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
-from benchmarks.bench_validate import generate  # noqa: E402 - after the path set-up
-
-
-def make_spec(gates: int) -> str:
-    """The benchmark spec: `gates` yes/no gates, each opening a scale and a number item."""
-    lines = [
-        f'survey bench "Benchmark: {gates} gates, two follow-ups each"',
-        "",
-        "codes yesno",
-        '  yes = 1 "Yes"',
-        '  no  = 2 "No"',
-        "",
-        "codes scale",
-        '  s1 = 1 "One"',
-        '  s2 = 2 "Two"',
-        '  s3 = 3 "Three"',
-        '  s4 = 4 "Four"',
-        '  s5 = 5 "Five"',
-        "",
-        "nonresponse",
-        '  dk = 98 "Don\'t know"',
-        "",
-    ]
-    for g in range(gates):
-        lines.append(f'g{g}: single yesno "Gate {g}?" gate')
-        lines.append(f'g{g}_a: single scale "Follow-up {g} a" when g{g} = yes')
-        lines.append(f'g{g}_b: number 0..500 "Follow-up {g} b" when g{g} = yes and g{g}_a >= s3')
-    return "\n".join(lines) + "\n"
+from benchmarks.bench_validate import generate, make_spec  # noqa: E402 - after the path set-up
 
 
 # Per-item counts an analyst would write by hand for this spec: due (with the cascade:

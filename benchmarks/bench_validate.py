@@ -29,9 +29,10 @@ GATES = 100
 GEN_CHUNK = 100_000
 
 
-def make_spec() -> str:
+def make_spec(gates: int = GATES) -> str:
+    """The benchmark spec: `gates` yes/no gates, each opening a scale and a number item."""
     lines = [
-        'survey bench "Benchmark: 100 gates, two follow-ups each"',
+        f'survey bench "Benchmark: {gates} gates, two follow-ups each"',
         "",
         "codes yesno",
         '  yes = 1 "Yes"',
@@ -48,7 +49,7 @@ def make_spec() -> str:
         '  dk = 98 "Don\'t know"',
         "",
     ]
-    for g in range(GATES):
+    for g in range(gates):
         lines.append(f'g{g}: single yesno "Gate {g}?" gate')
         lines.append(f'g{g}_a: single scale "Follow-up {g} a" when g{g} = yes')
         lines.append(f'g{g}_b: number 0..500 "Follow-up {g} b" when g{g} = yes and g{g}_a >= s3')
