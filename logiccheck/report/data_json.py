@@ -18,6 +18,7 @@ import pyarrow.compute as pc
 
 from logiccheck.data.findings import FindingBlock
 from logiccheck.data.result import ValidationResult
+from logiccheck.safety.text import MAX_VALUE_CHARS, clip
 
 # Findings rendered per slice: bounds the memory of the text being written.
 SLICE = 200_000
@@ -103,7 +104,11 @@ def _render(block: FindingBlock, at: np.ndarray) -> pa.Array:
         message = _quoted(_texts(block.messages, at))
     elif "{value}" in block.message:
         pieces = [encode_basestring(p)[1:-1] for p in block.message.split("{value}")]
-        inner = pc.fill_null(_escaped(value_texts), "")  # a blank value reads as ""
+        shown = value_texts
+        if n and pc.any(pc.greater(pc.utf8_length(value_texts), MAX_VALUE_CHARS)).as_py():
+            # A long value is cut in the message, as the record's own message cuts it.
+            shown = pa.array([None if v is None else clip(v) for v in value_texts.to_pylist()], pa.string())
+        inner = pc.fill_null(_escaped(shown), "")  # a blank value reads as ""
         spliced = [x for p in pieces[1:] for x in (inner, p)]
         message = pc.binary_join_element_wise('"' + pieces[0], *spliced, '"', "")
     else:
