@@ -18,6 +18,7 @@ points back at the source, so an unsat core reads as an explanation.
 from __future__ import annotations
 
 import math
+import weakref
 from collections.abc import Iterable
 from dataclasses import dataclass, field
 from typing import Any, Literal
@@ -179,6 +180,8 @@ class Encoding:
         self._value_cache: dict[tuple[int, str, int], Value] = {}
         self.blocks: dict[str, Block] = {}
         self._block_reach: dict[str, z3.BoolRef] = {}
+        # model -> name -> how the witness says it (models are compared by identity).
+        self._described: weakref.WeakKeyDictionary[z3.ModelRef, dict[str, str]] = weakref.WeakKeyDictionary()
         self._build()
 
     # ------------------------------------------------------------ variables
@@ -674,7 +677,50 @@ class Encoding:
             wanted = sorted(order, key=order.__getitem__)
         else:
             wanted = sorted({x for x in names if x in order}, key=order.__getitem__)
-        return {name: self.describe(model, name) for name in wanted}
+        # Witnesses from one model share most names (the stops before a statement and
+        # what decides them), so each name is read once per model, and in batches.
+        known = self._described.get(model)
+        if known is None:
+            known = self._described[model] = {}
+        todo = [x for x in wanted if x not in known]
+        if todo:
+            known.update(self._describe_many(model, todo))
+        return {name: known[name] for name in wanted}
+
+    def _describe_many(self, model: z3.ModelRef, names: list[str]) -> dict[str, str]:
+        """`describe` for many names, reading the Booleans in one evaluation per batch."""
+        out: dict[str, str] = {}
+        items = [x for x in names if self.q.symbols[x].kind == "item"]
+        asked = dict(zip(items, _bits(model, [self._asked[x] for x in items]), strict=True))
+        shown = [x for x in items if asked[x] and self.q.symbols[x].stmt.type.kind != "note"]
+        answered = dict(zip(shown, _bits(model, [self._answered[x] for x in shown]), strict=True))
+        multis = [x for x in names if self.q.symbols[x].stmt.type.kind == "multi"
+                  and (x not in asked or answered.get(x, False))]
+        options = [(x, code) for x in multis for code in self._options[x]]
+        chosen = dict(zip(options, _bits(model, [self._options[x][c] for x, c in options]), strict=True))
+        for name in names:
+            entry = self.q.symbols[name]
+            kind = entry.stmt.type.kind
+            if name in asked:
+                if not asked[name]:
+                    out[name] = "not asked"
+                    continue
+                if kind == "note":
+                    out[name] = "shown"
+                    continue
+                if not answered[name]:
+                    out[name] = "blank"
+                    continue
+                if kind == "text":
+                    out[name] = "(some text)"
+                    continue
+            if kind == "multi":
+                codes = self.q.item_codes(entry.stmt)
+                labels = [o.label for o in (codes.options if codes else []) if chosen[(name, o.value)]]
+                out[name] = ", ".join(labels) if labels else "none"
+                continue
+            out[name] = self._label(model, entry)
+        return out
 
     def describe(self, model: z3.ModelRef, name: str) -> str:
         entry = self.q.symbols[name]
@@ -746,3 +792,26 @@ def _entry_word(entry: Entry) -> str:
     if entry.kind == "skip":
         return f"`skip to {entry.stmt.target}`"
     return f"`{entry.name}`"
+
+
+def _bits(model: z3.ModelRef, terms: list[z3.BoolRef], chunk: int = 256) -> list[bool]:
+    """The truth of each Boolean term in `model` (completed as `model.eval` does), read
+    with one evaluation per `chunk` terms: each call into z3 costs more than the work."""
+    out: list[bool] = []
+    # Made here, not at import: a term made early shifts z3's term ids, which steer the
+    # models it finds (and so every witness).
+    one, zero = z3.BitVecVal(1, 1), z3.BitVecVal(0, 1)
+    for i in range(0, len(terms), chunk):
+        part = terms[i : i + chunk]
+        ctx = part[0].ctx
+        ref = ctx.ref()
+        term: z3.BitVecRef | None = None
+        for t in part:
+            # Wrap each new term at once: the wrapper holds the reference count.
+            bit = z3.BitVecRef(z3.Z3_mk_ite(ref, t.as_ast(), one.as_ast(), zero.as_ast()), ctx)
+            term = bit if term is None else z3.BitVecRef(z3.Z3_mk_concat(ref, term.as_ast(), bit.as_ast()), ctx)
+        assert term is not None
+        value = model.eval(term, model_completion=True).as_long()
+        width = len(part)
+        out.extend(bool((value >> (width - 1 - j)) & 1) for j in range(width))
+    return out

@@ -64,6 +64,7 @@ class RoutingAnalysis:
         self.roots: dict[Hashable, list[str]] = {}  # question -> subjects it is about
         self.comparisons: list[tuple[Statement, Any]] = []
         self.pipes: list[tuple[Entry, str, Span, z3.BoolRef]] = []
+        self._names_cache: dict[int, list[str]] = {}  # id of an expression of `q` -> names
         self._pose()
         self.graph = self._subject_graph()
         self.facts = RoutingFacts(self._solve())
@@ -389,10 +390,7 @@ class RoutingAnalysis:
         seen_lets: set[str] = set()
         while stack:
             expr = stack.pop()
-            for node in n.walk(expr):
-                name = node.name if isinstance(node, (n.Ref, n.Func)) else None
-                if name is None or name not in self.q.symbols:
-                    continue
+            for name in self._names_in(expr):
                 target = self.q.symbols[name]
                 if target.kind == "let":
                     if name not in seen_lets:
@@ -405,6 +403,16 @@ class RoutingAnalysis:
                 if target.kind == "item":
                     stack.extend(e for e in target.conditions())
         return names
+
+    def _names_in(self, expr: Any) -> list[str]:
+        """The defined names an expression reads, in walk order (kept: every finding's
+        cone walks the conditions of the stops before it, the same few many times)."""
+        hit = self._names_cache.get(id(expr))
+        if hit is None:
+            hit = [node.name for node in n.walk(expr)
+                   if isinstance(node, (n.Ref, n.Func)) and node.name in self.q.symbols]
+            self._names_cache[id(expr)] = hit
+        return hit
 
 
 def _xor(a: z3.BoolRef, b: z3.BoolRef) -> z3.BoolRef:
