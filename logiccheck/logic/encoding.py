@@ -17,11 +17,12 @@ points back at the source, so an unsat core reads as an explanation.
 
 from __future__ import annotations
 
+import bisect
 import math
 import weakref
 from collections.abc import Iterable
 from dataclasses import dataclass, field
-from typing import Any, Literal
+from typing import Any, Literal, TypeAlias
 
 import z3
 
@@ -149,6 +150,39 @@ def _implies(a: z3.BoolRef, b: z3.BoolRef) -> z3.BoolRef:
     return z3.BoolRef(z3.Z3_mk_implies(a.ctx.ref(), a.as_ast(), b.as_ast()), a.ctx)
 
 
+class JointModel:
+    """A respondent made of two models that agree on the variables both read: `own`,
+    of a part's own constraints, and `outer`, of the guards before it (earlier stops,
+    sample variables). Reads like a z3 model (`eval`)."""
+
+    def __init__(self, own: z3.ModelRef, outer: z3.ModelRef, behind: frozenset[str]) -> None:
+        self.own = own
+        self.outer = outer
+        self.behind = behind  # the subjects `outer` decides (see `Conjunct.subject`)
+
+    def pick(self, const: z3.ExprRef) -> z3.ModelRef:
+        """The model that decides a constant: `own` where it has a value, else `outer`
+        (the C API directly: this runs for every name of every witness)."""
+        ref = const.ctx.ref()
+        decl = z3.Z3_get_app_decl(ref, const.as_ast())
+        if z3.Z3_model_has_interp(ref, self.own.model, decl) or not z3.Z3_model_has_interp(ref, self.outer.model, decl):
+            return self.own
+        return self.outer
+
+    def eval(self, term: z3.ExprRef, model_completion: bool = False) -> z3.ExprRef:
+        if _is_constant(term):
+            return self.pick(term).eval(term, model_completion=model_completion)
+        pairs = []
+        for const in _constants(term):
+            if self.pick(const) is self.outer:
+                pairs.append((const, self.outer.eval(const)))
+        return self.own.eval(z3.substitute(term, *pairs) if pairs else term, model_completion=model_completion)
+
+
+Model: TypeAlias = "z3.ModelRef | JointModel"
+"""What `witness` reads: a z3 model, or two joined."""
+
+
 class Encoding:
     """z3 formulas for one questionnaire.
 
@@ -181,7 +215,10 @@ class Encoding:
         self.blocks: dict[str, Block] = {}
         self._block_reach: dict[str, z3.BoolRef] = {}
         # model -> name -> how the witness says it (models are compared by identity).
-        self._described: weakref.WeakKeyDictionary[z3.ModelRef, dict[str, str]] = weakref.WeakKeyDictionary()
+        self._stop_at: list[int] = []  # entry index of each stop, in order
+        self._spans: dict[int, list[Entry]] = {}
+        self._built = False  # every statement's reach variable exists
+        self._described: weakref.WeakKeyDictionary[Model, dict[str, str]] = weakref.WeakKeyDictionary()
         self._build()
 
     # ------------------------------------------------------------ variables
@@ -299,6 +336,7 @@ class Encoding:
             self._reach[entry.index] = z3.Bool(self._var_name("reach", str(entry.index)))
         for block in self.blocks.values():
             self._block_reach[block.name] = z3.Bool(self._var_name("reach", f"block:{block.name}"))
+        self._built = True
         # Definitions, in questionnaire order.
         blocks_at: dict[int, list[Block]] = {}
         for block in self.blocks.values():
@@ -398,21 +436,28 @@ class Encoding:
 
     def _alive_before(self, index: int) -> tuple[z3.BoolRef, Entry | None]:
         """No stop before `index` fired (and the last such stop, if any)."""
-        last = None
-        for e in self.q._stops():
-            if e.index < index:
-                last = e
-            else:
-                break
-        if last is None:
+        stops = self.q._stops()
+        if len(self._stop_at) != len(stops):
+            self._stop_at = [e.index for e in stops]
+        # Bisect, not a scan: this is asked for every statement (stops x statements).
+        k = bisect.bisect_left(self._stop_at, index)
+        if k == 0:
             return TRUE, None
+        last = stops[k - 1]
         return self._alive[self._stop_rank[last.index] + 1], last
 
     def _spanning_skips(self, index: int) -> list[Entry]:
-        return [
-            e for e in self.q._skips()
-            if e.index < index and e.skip_target is not None and e.skip_target > index and e.index in self._reach
-        ]
+        """The skips before `index` that land after it (asked for every statement, more
+        than once: kept per index once every statement's reach variable exists)."""
+        hit = self._spans.get(index)
+        if hit is None:
+            hit = [
+                e for e in self.q._skips()
+                if e.index < index and e.skip_target is not None and e.skip_target > index and e.index in self._reach
+            ]
+            if self._built:
+                self._spans[index] = hit
+        return hit
 
     def _define_reach(self, reach: z3.BoolRef, index: int, context: list[tuple[Any, Any]], what: str,
                       entry: int | None, span: Span, subject: str) -> None:
@@ -666,7 +711,7 @@ class Encoding:
         raise EncodingError(f"a {getattr(expr, 'kind', type(expr).__name__)} is not a value")
 
     # ------------------------------------------------------------ witnesses
-    def witness(self, model: z3.ModelRef, names: Iterable[str] | None = None) -> dict[str, str]:
+    def witness(self, model: Model, names: Iterable[str] | None = None) -> dict[str, str]:
         """A respondent from a model: item = label / number / `blank` / `not asked`,
         sample variable = label. `names` limits and orders it; default: every item
         and sample variable in questionnaire order."""
@@ -687,8 +732,14 @@ class Encoding:
             known.update(self._describe_many(model, todo))
         return {name: known[name] for name in wanted}
 
-    def _describe_many(self, model: z3.ModelRef, names: list[str]) -> dict[str, str]:
+    def _describe_many(self, model: Model, names: list[str]) -> dict[str, str]:
         """`describe` for many names, reading the Booleans in one evaluation per batch."""
+        if isinstance(model, JointModel):
+            # Each name is read in the model of the side its statement is on.
+            outer = [x for x in names if f"entry:{self.q.symbols[x].index}" in model.behind]
+            found = self._describe_many(model.outer, outer) if outer else {}
+            found.update(self._describe_many(model.own, [x for x in names if x not in set(outer)]))
+            return {x: found[x] for x in names}
         out: dict[str, str] = {}
         items = [x for x in names if self.q.symbols[x].kind == "item"]
         asked = dict(zip(items, _bits(model, [self._asked[x] for x in items]), strict=True))
@@ -722,7 +773,7 @@ class Encoding:
             out[name] = self._label(model, entry)
         return out
 
-    def describe(self, model: z3.ModelRef, name: str) -> str:
+    def describe(self, model: Model, name: str) -> str:
         entry = self.q.symbols[name]
         if entry.kind == "item":
             if not z3.is_true(model.eval(self._asked[name], model_completion=True)):
@@ -814,4 +865,37 @@ def _bits(model: z3.ModelRef, terms: list[z3.BoolRef], chunk: int = 256) -> list
         value = model.eval(term, model_completion=True).as_long()
         width = len(part)
         out.extend(bool((value >> (width - 1 - j)) & 1) for j in range(width))
+    return out
+
+
+def _is_constant(term: z3.ExprRef) -> bool:
+    """An uninterpreted constant (a variable), read through the C API."""
+    ref = term.ctx.ref()
+    ast = term.as_ast()
+    if z3.Z3_get_ast_kind(ref, ast) != z3.Z3_APP_AST or z3.Z3_get_app_num_args(ref, ast) != 0:
+        return False
+    return bool(z3.Z3_get_decl_kind(ref, z3.Z3_get_app_decl(ref, ast)) == z3.Z3_OP_UNINTERPRETED)
+
+
+def _constants(term: z3.ExprRef) -> list[z3.ExprRef]:
+    """The uninterpreted constants in a term, each once (through the C API)."""
+    ctx = term.ctx
+    ref = ctx.ref()
+    out: list[z3.ExprRef] = []
+    seen: set[int] = set()
+    stack = [term.as_ast()]
+    while stack:
+        ast = stack.pop()
+        aid = z3.Z3_get_ast_id(ref, ast)
+        if aid in seen:
+            continue
+        seen.add(aid)
+        if z3.Z3_get_ast_kind(ref, ast) != z3.Z3_APP_AST:
+            continue
+        n_args = z3.Z3_get_app_num_args(ref, ast)
+        if n_args == 0:
+            if z3.Z3_get_decl_kind(ref, z3.Z3_get_app_decl(ref, ast)) == z3.Z3_OP_UNINTERPRETED:
+                out.append(z3.z3._to_expr_ref(ast, ctx))
+            continue
+        stack.extend(z3.Z3_get_app_arg(ref, ast, i) for i in range(n_args))
     return out

@@ -12,15 +12,16 @@ import z3
 
 from logiccheck.diagnostics import Span
 from logiccheck.graph.deps import reads_of
-from logiccheck.logic.encoding import FALSE, TRUE, Conjunct, Encoding, EncodingError, Reading, _and, _not
-from logiccheck.logic.solve import Cover, Queries, Stats
+from logiccheck.logic.encoding import FALSE, TRUE, Conjunct, Encoding, EncodingError, Model, Reading, _and, _not
+from logiccheck.logic.solve import Cover, Outer, Queries, Refuted, Stats
 from logiccheck.model import nodes as n
 from logiccheck.model.questionnaire import Entry, Questionnaire
 from logiccheck.model.resolve import pipes_in
 
 COMPARISONS = (n.Compare, n.InList, n.InRange, n.Has)
 OTHER_READINGS: tuple[Reading, ...] = ("blank", "code")
-GROUP_QUESTIONS = 600  # questions per solver, summed over independent parts
+GROUP_QUESTIONS = 300  # questions per solver, summed over independent parts (measured: bench_lint.py)
+SPLIT_GUARDS = True  # solve groups apart from the stops before them (False: whole, for tests)
 
 
 @dataclass
@@ -46,7 +47,7 @@ class RoutingFacts:
     def possible(self, key: Hashable) -> bool:
         return key in self.cover.models
 
-    def model(self, key: Hashable) -> z3.ModelRef | None:
+    def model(self, key: Hashable) -> Model | None:
         return self.cover.models.get(key)
 
 
@@ -310,27 +311,103 @@ class RoutingAnalysis:
             current.update(parts[k])
             roots |= part_roots[k]
             if len(current) >= GROUP_QUESTIONS:
-                groups.append((current, self.closure(roots)))
+                groups.append((current, roots))
                 current, roots = {}, set()
         if current:
-            groups.append((current, self.closure(roots)))
+            groups.append((current, roots))
         total = Cover()
+        outer = Outer(self.queries)
         for questions, subjects in groups:
-            got = self.queries.cover(questions, subjects, first=lambda key: key[0] in ("asked", "reached", "block"))
+            got = self._cover(questions, subjects, outer)
             total.models.update(got.models)
             total.unsat.update(got.unsat)
         return total
 
-    def closure(self, roots: Iterable[str]) -> set[str]:
-        """The subjects whose constraints decide questions about `roots`."""
+    def _cover(self, questions: dict[Hashable, z3.BoolRef], roots: set[str] | None, outer: Outer) -> Cover:
+        """Cover one group. The stops before it (and sample variables) are behind guard
+        edges; their constraints grow with the questionnaire (every earlier stop and
+        what decides it), so the group is first solved without them and each model
+        joined with one of theirs (see `_split`)."""
+        first = lambda key: key[0] in ("asked", "reached", "block")  # noqa: E731
+        if roots is None:
+            return self.queries.cover(questions, None, first=first)
+        try:
+            split = self._split(roots) if SPLIT_GUARDS else None
+        except _NoSplit:
+            split = None
+        if split is not None:
+            own, behind, shared = split
+            outer.prepare(behind, own)
+            try:
+                return self.queries.cover(questions, own, first=first, outer=(outer, shared))
+            except Refuted:
+                pass
+        return self.queries.cover(questions, self.closure(roots), first=first)
+
+    def _split(self, roots: set[str]) -> tuple[set[str], set[str], list[z3.ExprRef]] | None:
+        """(own, behind, shared) for a group's roots: `own` is what they reach without
+        crossing a guard edge, `behind` the rest of their closure, `shared` the variables
+        own constraints read of it (a stop's `alive` and reach, a sample variable's
+        value). Solving `own` with its models joined to `behind`'s on `shared` is exact
+        because nothing behind reads back into `own`; when something does, or nothing is
+        behind a guard, None (the group is solved whole)."""
+        g = self.graph
+        own = self.closure(roots, guards=False)
+        # A sample variable's domain is a constraint of its own, reading nothing: kept
+        # with the part, so its models take only values the variable can have.
+        samples = {b for a in own for b in g.successors(a) if self._is_sample(b)}
+        own |= self.closure(samples, guards=False)
+        behind = self.closure(roots) - own
+        if not behind:
+            return None
+        shared: dict[int, z3.ExprRef] = {}
+        for a in sorted(own):
+            for b in g.successors(a):
+                if b not in behind:
+                    continue
+                for v in self._guard_vars(b):
+                    shared.setdefault(v.get_id(), v)
+        for name in sorted(samples):
+            # Stops behind may read them too: both sides take the part's value.
+            for v in self._guard_vars(name):
+                shared.setdefault(v.get_id(), v)
+        for b in behind:
+            if any(c in own and c not in samples for c in g.successors(b)):
+                return None
+        return own, behind, list(shared.values())
+
+    def _is_sample(self, subject: str) -> bool:
+        kind, _, rest = subject.partition(":")
+        return kind == "entry" and self.q.entries[int(rest)].kind == "sample"
+
+    def _guard_vars(self, subject: str) -> list[z3.ExprRef]:
+        """The variables of a guard edge's target that others' constraints read."""
+        kind, _, rest = subject.partition(":")
+        entry = self.q.entries[int(rest)] if kind == "entry" else None
+        if entry is not None and entry.kind == "stop" and entry.index in self.enc._stop_rank:
+            return [self.enc._alive[self.enc._stop_rank[entry.index] + 1], self.enc.reached(entry)]
+        if entry is not None and entry.kind == "sample":
+            name = entry.name
+            if name in self.enc._values:
+                return [self.enc._values[name]]
+            return list(self.enc._options.get(name, {}).values())
+        raise _NoSplit(subject)
+
+    def closure(self, roots: Iterable[str], guards: bool = True) -> set[str]:
+        """The subjects whose constraints decide questions about `roots` (with
+        `guards=False`: those reached without crossing a guard edge)."""
+        g = self.graph
         seen = set()
-        stack = [r for r in roots if r in self.graph]
+        stack = [r for r in roots if r in g]
         while stack:
             node = stack.pop()
             if node in seen:
                 continue
             seen.add(node)
-            stack.extend(self.graph.successors(node))
+            if guards:
+                stack.extend(g.successors(node))
+            else:
+                stack.extend(b for b, d in g[node].items() if not d.get("guard"))
         return seen
 
     def _shown(self, entry: Entry) -> z3.BoolRef | None:
@@ -370,7 +447,7 @@ class RoutingAnalysis:
         """A minimised unsat core for `formula`, `conj` saying the target itself."""
         return self.queries.core([(formula, conj)], self.closure(roots))
 
-    def witness_for(self, model: z3.ModelRef, names: list[str]) -> dict[str, str]:
+    def witness_for(self, model: Model, names: list[str]) -> dict[str, str]:
         return self.enc.witness(model, names)
 
     def cone(self, exprs: list[Any], entry: Entry | None = None) -> list[str]:
@@ -419,6 +496,10 @@ def _xor(a: z3.BoolRef, b: z3.BoolRef) -> z3.BoolRef:
     if a is b or a.get_id() == b.get_id():
         return FALSE
     return z3.Xor(a, b)
+
+
+class _NoSplit(Exception):
+    """A guard edge to something other than a stop or a sample variable."""
 
 
 class _Asker:

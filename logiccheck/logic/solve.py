@@ -7,7 +7,7 @@ from dataclasses import dataclass, field
 
 import z3
 
-from logiccheck.logic.encoding import FALSE, Conjunct, Encoding, _implies, _or
+from logiccheck.logic.encoding import FALSE, Conjunct, Encoding, JointModel, Model, _implies, _or
 
 # Conjunct kinds that say something in the spec's terms; the others are plumbing.
 TELLING = ("domain", "required", "context", "own", "stop", "skip", "target")
@@ -22,8 +22,49 @@ class Stats:
 class Cover:
     """Which keys have a satisfying respondent (`models[key]`) and which have none."""
 
-    models: dict[Hashable, z3.ModelRef] = field(default_factory=dict)
+    models: dict[Hashable, Model] = field(default_factory=dict)
     unsat: set[Hashable] = field(default_factory=set)
+
+
+class Refuted(Exception):
+    """A part's model does not extend to the guards before it: decide it whole."""
+
+
+class Outer:
+    """The guards' side of a split part: whether values of the shared variables extend
+    to the constraints of the subjects behind the guards, with a model when they do.
+
+    One solver serves part after part while what it holds stays apart from the part's
+    own subjects (the subjects behind guards grow along the questionnaire: the stops so
+    far); the constraints of a closed set of subjects never rule out values of others."""
+
+    def __init__(self, queries: Queries) -> None:
+        self.queries = queries
+        self.solver: z3.Solver | None = None
+        self.held: set[str] = set()
+        self.behind: frozenset[str] = frozenset()
+        self.found: dict[tuple[int, ...], z3.ModelRef | None] = {}
+
+    def prepare(self, subjects: set[str], own: set[str]) -> None:
+        if self.solver is None or self.held & own:
+            self.solver = z3.SimpleSolver()
+            self.held = set()
+        new = subjects - self.held
+        _assert(self.solver, [c.formula for c in self.queries.conjuncts_of(new)])
+        self.held |= new
+        self.behind = frozenset(self.held)
+        self.found = {}
+
+    def extend(self, values: list[tuple[z3.ExprRef, z3.ExprRef]]) -> z3.ModelRef | None:
+        assert self.solver is not None
+        key = tuple(value.get_id() for _, value in values)
+        if key in self.found:
+            return self.found[key]
+        self.queries.stats.calls += 1
+        fixed = [_eq_value(var, value) for var, value in values]
+        model = self.solver.model() if self.solver.check(*fixed) == z3.sat else None
+        self.found[key] = model
+        return model
 
 
 class Queries:
@@ -37,6 +78,7 @@ class Queries:
         self.enc = enc
         self.stats = stats or Stats()
         self._lits: dict[str, Conjunct] = {c.label: c for c in enc.conjuncts}
+        self._rank: dict[str, int] = {c.label: i for i, c in enumerate(enc.conjuncts)}
         self.phase: int | None = 5  # random phases: models spread over many branches
         self.relevancy = 0
         self.by_subject: dict[str | None, list[Conjunct]] = {}
@@ -67,7 +109,8 @@ class Queries:
         return None
 
     def cover(self, questions: dict[Hashable, z3.BoolRef], subjects: Iterable[str] | None = None,
-              first: Callable[[Hashable], bool] | None = None) -> Cover:
+              first: Callable[[Hashable], bool] | None = None,
+              outer: tuple[Outer, list[z3.ExprRef]] | None = None) -> Cover:
         """Decide every question with few calls, in two phases.
 
         1. Ask for as many open questions at once as possible (a conjunction of
@@ -76,7 +119,12 @@ class Queries:
            itself alone has no respondent. Each model answers every question it
            satisfies.
         2. What is still open is asked as one disjunction until that has no respondent
-           (all remaining are impossible) -- few calls when most are impossible."""
+           (all remaining are impossible) -- few calls when most are impossible.
+
+        With `outer` (the guards' side and the variables `subjects` share with it),
+        `subjects` leave the guards out: an impossible question stays impossible with
+        more constraints, and each model is joined with one of the guards' that agrees
+        on the shared variables; when there is none, `Refuted` is raised."""
         out = Cover()
         pending: dict[Hashable, z3.BoolRef] = {}
         for key, f in questions.items():
@@ -113,8 +161,15 @@ class Queries:
             reader = _Reader(pending)
 
             def mark(model: z3.ModelRef) -> None:
+                found: Model = model
+                if outer is not None:
+                    side, shared = outer
+                    joined = side.extend([(v, model.eval(v, model_completion=True)) for v in shared])
+                    if joined is None:
+                        raise Refuted
+                    found = JointModel(model, joined, side.behind)
                 for key in reader.true_in(model, pending):
-                    out.models[key] = model
+                    out.models[key] = found
                     del pending[key]
 
             # Phase 1 on the questions marked `first` (e.g. reachability): most of them
@@ -124,7 +179,7 @@ class Queries:
             while batch and budget > 0:
                 budget -= 1
                 self.stats.calls += 1
-                if self.solver.check(*[lits[k] for k in batch]) == z3.sat:
+                if _check(self.solver, [lits[k] for k in batch]) == z3.sat:
                     mark(self.solver.model())
                     break
                 core = [by_lit[str(c)] for c in self.solver.unsat_core() if str(c) in by_lit]
@@ -155,8 +210,8 @@ class Queries:
         respondent (None if there is one). Targets are (formula, how to say it)."""
         s = z3.Solver()
         conjuncts = self.conjuncts_of(subjects)
-        for c in conjuncts:
-            s.add(z3.Implies(z3.Bool(c.label), c.formula))
+        named = [z3.Bool(c.label) for c in conjuncts]
+        _assert(s, [_implies(lit, c.formula) for lit, c in zip(named, conjuncts, strict=True)])
         s.push()
         try:
             own: dict[str, Conjunct] = {}
@@ -164,9 +219,9 @@ class Queries:
                 lit = z3.Bool(f"target!{i}")
                 own[str(lit)] = conj
                 s.add(z3.Implies(lit, formula))
-            lits = [z3.Bool(label) for label in own] + [z3.Bool(c.label) for c in conjuncts]
+            lits = [z3.Bool(label) for label in own] + named
             self.stats.calls += 1
-            if s.check(*lits) != z3.unsat:
+            if _check(s, lits) != z3.unsat:
                 return None
             core = list(s.unsat_core())
             # Deletion-based minimisation: drop each literal the core does not need.
@@ -175,17 +230,24 @@ class Queries:
                 while i < len(core):
                     trial = core[:i] + core[i + 1 :]
                     self.stats.calls += 1
-                    if s.check(*trial) == z3.unsat:
+                    if _check(s, trial) == z3.unsat:
                         core = list(s.unsat_core()) if len(s.unsat_core()) < len(trial) else trial
                     else:
                         i += 1
-            out = []
-            for lit in core:
-                name = str(lit)
-                out.append(own.get(name) or self._lits[name])
-            return out
+            # In the spec's order (targets first), not z3's: the order of a core follows
+            # term ids, which any earlier solver work shifts.
+            names = sorted((str(lit) for lit in core), key=lambda x: (x not in own, self._rank.get(x, 0), x))
+            return [own.get(name) or self._lits[name] for name in names]
         finally:
             s.pop()
+
+
+def _check(solver: z3.Solver, assumptions: list[z3.BoolRef]) -> z3.CheckSatResult:
+    """`solver.check(*assumptions)` through the C API: `check` converts every literal in Python."""
+    arr = (z3.Ast * len(assumptions))()
+    for i, a in enumerate(assumptions):
+        arr[i] = a.as_ast()
+    return z3.CheckSatResult(z3.Z3_solver_check_assumptions(solver.ctx.ref(), solver.solver, len(assumptions), arr))
 
 
 def _assert(solver: z3.Solver, formulas: list[z3.BoolRef]) -> None:
@@ -226,3 +288,10 @@ class _Reader:
                 if k in open_keys and (value >> (width - 1 - j)) & 1:
                     out.append(k)
         return out
+
+
+def _eq_value(var: z3.ExprRef, value: z3.ExprRef) -> z3.BoolRef:
+    if z3.is_bool(var):
+        return var if z3.is_true(value) else z3.Not(var)
+    return var == value
+
