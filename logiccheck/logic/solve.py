@@ -57,7 +57,7 @@ class Outer:
 
     def extend(self, values: list[tuple[z3.ExprRef, z3.ExprRef]]) -> z3.ModelRef | None:
         assert self.solver is not None
-        key = tuple(value.get_id() for _, value in values)
+        key = tuple((var.get_id(), value.get_id()) for var, value in values)
         if key in self.found:
             return self.found[key]
         self.queries.stats.calls += 1
@@ -164,7 +164,10 @@ class Queries:
                 found: Model = model
                 if outer is not None:
                     side, shared = outer
-                    joined = side.extend([(v, model.eval(v, model_completion=True)) for v in shared])
+                    # Only what the part's model gives a value: the others the part does
+                    # not read (a stop's reach variable, read behind the guard only).
+                    values = [(v, model.get_interp(v.decl())) for v in shared]
+                    joined = side.extend([(v, value) for v, value in values if value is not None])
                     if joined is None:
                         raise Refuted
                     found = JointModel(model, joined, side.behind)
