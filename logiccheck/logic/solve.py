@@ -43,7 +43,7 @@ class Outer:
         self.solver: z3.Solver | None = None
         self.held: set[str] = set()
         self.behind: frozenset[str] = frozenset()
-        self.found: dict[tuple[int, ...], z3.ModelRef | None] = {}
+        self.found: dict[tuple[tuple[int, int], ...], z3.ModelRef | None] = {}
 
     def prepare(self, subjects: set[str], own: set[str]) -> None:
         if self.solver is None or self.held & own:
