@@ -1,6 +1,6 @@
 """The `lint` command as users run it, on generated routing specs of 2,000 and 5,000 items.
 
-    python benchmarks/bench_lint.py [--sizes 2000 5000] [--repeat 1] [--no-split]
+    python benchmarks/bench_lint.py [--sizes 2000 5000] [--repeat 1] [--no-split] [--against DIR]
 
 Each spec comes from `generate.routing_spec` (modules of gates nested 6 deep, grids,
 derived values, skips, stops, planted unreachable items) and is written to a temporary
@@ -10,7 +10,9 @@ folder. For each size, in the same run and each in a child process:
   10 s at 2,000 items and 20 s at 5,000),
 * the baseline `logiccheck lint SPEC --format json --no-solver` (static checks only),
 * unless `--no-split`: a child that times each stage in-process (load, the static checks,
-  building the routing analysis, each routing check), since the command prints no timings.
+  building the routing analysis, each routing check), since the command prints no timings,
+* with `--against DIR` (another checkout, e.g. a worktree of main): the same command run
+  from that checkout right after ours, for a before/after under the same load.
 
 Wall time suffers from other work on a shared machine; CPU time (user + system of the
 child) is the steadier figure. The load average is printed with every row.
@@ -106,9 +108,11 @@ def main() -> None:
     parser.add_argument("--sizes", type=int, nargs="+", default=[2000, 5000])
     parser.add_argument("--repeat", type=int, default=1)
     parser.add_argument("--no-split", action="store_true", help="skip the per-stage split")
+    parser.add_argument("--against", help="another checkout to time the same command from")
     args = parser.parse_args()
     env = {**os.environ, "PYTHONPATH": str(ROOT)}
     cli = command()
+    other = {**os.environ, "PYTHONPATH": str(Path(args.against).resolve())} if args.against else None
     folder = Path(tempfile.mkdtemp(prefix="lc-bench-lint-"))
     try:
         print(f"{'items':>6} {'command':<38} {'wall s':>7} {'cpu s':>7} {'cpu ×base':>9} {'bar':>5} {'load':>5}")
@@ -125,6 +129,11 @@ def main() -> None:
             print(f"{size:>6} {'lint --format json':<38} {wall:7.2f} {cpu:7.2f} {cpu / base_c:9.1f} {verdict:>5} "
                   f"{os.getloadavg()[0]:5.1f}")
             print(f"{'':>6} findings: {counts(out)}")
+            if other is not None:
+                o_wall, o_cpu, o_out = best(args.repeat, [*cli, "lint", str(spec), "--format", "json"], other)
+                print(f"{size:>6} {'lint --format json (' + Path(args.against).name + ')':<38} {o_wall:7.2f} "
+                      f"{o_cpu:7.2f} {o_cpu / base_c:9.1f} {'':>5} {os.getloadavg()[0]:5.1f}")
+                print(f"{'':>6} findings: {counts(o_out)}; ours/theirs CPU {cpu / o_cpu:.2f}")
             if not args.no_split:
                 _, _, raw = timed([sys.executable, "-c", SPLIT, str(spec)], env)
                 try:
