@@ -218,7 +218,7 @@ class Encoding:
         self._stop_at: list[int] = []  # entry index of each stop, in order
         self._spans: dict[int, list[Entry]] = {}
         self._built = False  # every statement's reach variable exists
-        self._described: weakref.WeakKeyDictionary[Model, dict[str, str]] = weakref.WeakKeyDictionary()
+        self._described: weakref.WeakKeyDictionary[z3.ModelRef, dict[str, str]] = weakref.WeakKeyDictionary()
         self._build()
 
     # ------------------------------------------------------------ variables
@@ -722,24 +722,30 @@ class Encoding:
             wanted = sorted(order, key=order.__getitem__)
         else:
             wanted = sorted({x for x in names if x in order}, key=order.__getitem__)
-        # Witnesses from one model share most names (the stops before a statement and
-        # what decides them), so each name is read once per model, and in batches.
+        return self._described_in(model, wanted)
+
+    def _described_in(self, model: Model, names: list[str]) -> dict[str, str]:
+        """`describe` of each name, kept per model: witnesses from one model share most
+        names (the stops before a statement and what decides them), and a joined model
+        reads the names behind its guards in a model many joined models share."""
+        if isinstance(model, JointModel):
+            # Each name is read in the model of the side its statement is on.
+            behind = [x for x in names if f"entry:{self.q.symbols[x].index}" in model.behind]
+            found = self._described_in(model.outer, behind) if behind else {}
+            if len(behind) < len(names):
+                skip = set(behind)
+                found.update(self._described_in(model.own, [x for x in names if x not in skip]))
+            return {x: found[x] for x in names}
         known = self._described.get(model)
         if known is None:
             known = self._described[model] = {}
-        todo = [x for x in wanted if x not in known]
+        todo = [x for x in names if x not in known]
         if todo:
             known.update(self._describe_many(model, todo))
-        return {name: known[name] for name in wanted}
+        return {name: known[name] for name in names}
 
-    def _describe_many(self, model: Model, names: list[str]) -> dict[str, str]:
-        """`describe` for many names, reading the Booleans in one evaluation per batch."""
-        if isinstance(model, JointModel):
-            # Each name is read in the model of the side its statement is on.
-            outer = [x for x in names if f"entry:{self.q.symbols[x].index}" in model.behind]
-            found = self._describe_many(model.outer, outer) if outer else {}
-            found.update(self._describe_many(model.own, [x for x in names if x not in set(outer)]))
-            return {x: found[x] for x in names}
+    def _describe_many(self, model: z3.ModelRef, names: list[str]) -> dict[str, str]:
+        """`describe` for many names, reading values through the C API."""
         out: dict[str, str] = {}
         items = [x for x in names if self.q.symbols[x].kind == "item"]
         asked = dict(zip(items, _bits(model, [self._asked[x] for x in items]), strict=True))
@@ -796,7 +802,7 @@ class Encoding:
             return ", ".join(chosen) if chosen else "none"
         if name not in self._values:
             return "?"
-        raw = model.eval(self._values[name], model_completion=True)
+        raw = _value(model, self._values[name])
         if kind == "single":
             number = raw.as_long()
             codes = self.q.item_codes(entry.stmt)
@@ -845,27 +851,29 @@ def _entry_word(entry: Entry) -> str:
     return f"`{entry.name}`"
 
 
-def _bits(model: z3.ModelRef, terms: list[z3.BoolRef], chunk: int = 256) -> list[bool]:
-    """The truth of each Boolean term in `model` (completed as `model.eval` does), read
-    with one evaluation per `chunk` terms: each call into z3 costs more than the work."""
+def _bits(model: z3.ModelRef, terms: list[z3.BoolRef]) -> list[bool]:
+    """The truth of Boolean variables (or the constants TRUE and FALSE) in `model`, as
+    `model.eval` with model completion reads them: a variable the model leaves open is
+    false. Through the C API: each Python-level call into z3 costs more than the work."""
     out: list[bool] = []
-    # Made here, not at import: a term made early shifts z3's term ids, which steer the
-    # models it finds (and so every witness).
-    one, zero = z3.BitVecVal(1, 1), z3.BitVecVal(0, 1)
-    for i in range(0, len(terms), chunk):
-        part = terms[i : i + chunk]
-        ctx = part[0].ctx
-        ref = ctx.ref()
-        term: z3.BitVecRef | None = None
-        for t in part:
-            # Wrap each new term at once: the wrapper holds the reference count.
-            bit = z3.BitVecRef(z3.Z3_mk_ite(ref, t.as_ast(), one.as_ast(), zero.as_ast()), ctx)
-            term = bit if term is None else z3.BitVecRef(z3.Z3_mk_concat(ref, term.as_ast(), bit.as_ast()), ctx)
-        assert term is not None
-        value = model.eval(term, model_completion=True).as_long()
-        width = len(part)
-        out.extend(bool((value >> (width - 1 - j)) & 1) for j in range(width))
+    for t in terms:
+        if t is TRUE or t is FALSE:
+            out.append(t is TRUE)
+            continue
+        ref = t.ctx.ref()
+        value = z3.Z3_model_get_const_interp(ref, model.model, z3.Z3_get_app_decl(ref, t.as_ast()))
+        out.append(bool(value) and z3.Z3_get_bool_value(ref, value) == z3.Z3_L_TRUE)
     return out
+
+
+def _value(model: z3.ModelRef, var: z3.ExprRef) -> z3.ExprRef:
+    """`model.eval(var, model_completion=True)` for a variable the model gives a value,
+    without z3's evaluator (the usual case, for every name of every witness)."""
+    ref = var.ctx.ref()
+    value = z3.Z3_model_get_const_interp(ref, model.model, z3.Z3_get_app_decl(ref, var.as_ast()))
+    if value:
+        return z3.z3._to_expr_ref(value, var.ctx)
+    return model.eval(var, model_completion=True)
 
 
 def _is_constant(term: z3.ExprRef) -> bool:

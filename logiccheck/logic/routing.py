@@ -66,6 +66,7 @@ class RoutingAnalysis:
         self.comparisons: list[tuple[Statement, Any]] = []
         self.pipes: list[tuple[Entry, str, Span, z3.BoolRef]] = []
         self._names_cache: dict[int, list[str]] = {}  # id of an expression of `q` -> names
+        self._cones: dict[int, dict[str, None]] = {}  # id of an expression of `q` -> its cone
         self._pose()
         self.graph = self._subject_graph()
         self.facts = RoutingFacts(self._solve())
@@ -453,17 +454,29 @@ class RoutingAnalysis:
     def cone(self, exprs: list[Any], entry: Entry | None = None) -> list[str]:
         """Items and sample variables a finding is about: those the expressions read,
         the statement's section/grid conditions read, and (transitively) what decides
-        whether those items were asked."""
-        names: list[str] = []
-        stack: list[Any] = [e for e in exprs if e is not None]
+        whether those items were asked. (A set in effect: witnesses sort it.)"""
+        roots: list[Any] = [e for e in exprs if e is not None]
         if entry is not None:
-            stack.extend(expr for _, expr in entry.context if expr is not None)
+            roots.extend(expr for _, expr in entry.context if expr is not None)
             if entry.own is not None:
-                stack.append(entry.own)
+                roots.append(entry.own)
             stops, skips = self.q.guards(entry)
             for g in [*stops, *skips]:
                 if g.own is not None:
-                    stack.append(g.own)
+                    roots.append(g.own)
+        out: dict[str, None] = {}
+        for expr in roots:
+            out.update(self._cone_of(expr))
+        return list(out)
+
+    def _cone_of(self, root: Any) -> dict[str, None]:
+        """`cone` of one expression, kept: every finding's cone takes in the conditions
+        of all the stops before it."""
+        hit = self._cones.get(id(root))
+        if hit is not None:
+            return hit
+        names: dict[str, None] = {}
+        stack: list[Any] = [root]
         seen_lets: set[str] = set()
         while stack:
             expr = stack.pop()
@@ -476,9 +489,10 @@ class RoutingAnalysis:
                     continue
                 if name in names:
                     continue
-                names.append(name)
+                names[name] = None
                 if target.kind == "item":
                     stack.extend(e for e in target.conditions())
+        self._cones[id(root)] = names
         return names
 
     def _names_in(self, expr: Any) -> list[str]:
