@@ -104,8 +104,10 @@ def _int(value: int) -> z3.ArithRef:
 
 def _eq(a: z3.ArithRef, b: z3.ArithRef) -> z3.BoolRef:
     """a == b through the C API when the sorts agree (z3's `==` coerces in Python)."""
-    if a.sort_kind() == b.sort_kind():
-        return z3.BoolRef(z3.Z3_mk_eq(a.ctx.ref(), a.as_ast(), b.as_ast()), a.ctx)
+    ref = a.ctx.ref()
+    x, y = a.as_ast(), b.as_ast()
+    if z3.Z3_get_sort_kind(ref, z3.Z3_get_sort(ref, x)) == z3.Z3_get_sort_kind(ref, z3.Z3_get_sort(ref, y)):
+        return z3.BoolRef(z3.Z3_mk_eq(ref, x, y), a.ctx)
     return a == b
 
 
@@ -662,7 +664,7 @@ class Encoding:
         if isinstance(expr, n.Ref):
             entry = self._visible(expr.name, at)
             if entry is None:
-                return Value(FALSE, z3.IntVal(0), FALSE)
+                return Value(FALSE, _int(0), FALSE)
             if entry.kind == "let":
                 if entry.index in self.q.broken or self.q.let_kinds.get(expr.name) != "number":
                     raise EncodingError(f"`{expr.name}` is not a number")
@@ -682,8 +684,8 @@ class Encoding:
             if opts is None:
                 raise EncodingError(f"`count({expr.name})` needs a multi item")
             if entry is None:
-                return Value(FALSE, z3.IntVal(0), FALSE)
-            total = z3.Sum([z3.If(o, 1, 0) for o in opts.values()]) if opts else z3.IntVal(0)
+                return Value(FALSE, _int(0), FALSE)
+            total = z3.Sum([z3.If(o, 1, 0) for o in opts.values()]) if opts else _int(0)
             return Value(self._answered[expr.name], total, FALSE)
         if isinstance(expr, n.Neg):
             inner = self.val(expr.operand, reading, at)
