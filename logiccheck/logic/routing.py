@@ -13,7 +13,7 @@ import z3
 from logiccheck.diagnostics import Span
 from logiccheck.graph.deps import reads_of
 from logiccheck.logic.encoding import FALSE, TRUE, Conjunct, Encoding, EncodingError, Model, Reading, _and, _not
-from logiccheck.logic.solve import Cover, Outer, Queries, Refuted, Stats
+from logiccheck.logic.solve import Cover, Outer, Queries, Refuted, Stats, uncompacted_models
 from logiccheck.model import nodes as n
 from logiccheck.model.questionnaire import Entry, Questionnaire
 from logiccheck.model.resolve import pipes_in
@@ -318,10 +318,11 @@ class RoutingAnalysis:
             groups.append((current, roots))
         total = Cover()
         outer = Outer(self.queries)
-        for questions, subjects in groups:
-            got = self._cover(questions, subjects, outer)
-            total.models.update(got.models)
-            total.unsat.update(got.unsat)
+        with uncompacted_models():
+            for questions, subjects in groups:
+                got = self._cover(questions, subjects, outer)
+                total.models.update(got.models)
+                total.unsat.update(got.unsat)
         return total
 
     def _cover(self, questions: dict[Hashable, z3.BoolRef], roots: set[str] | None, outer: Outer) -> Cover:

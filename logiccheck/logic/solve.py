@@ -2,7 +2,8 @@
 
 from __future__ import annotations
 
-from collections.abc import Callable, Hashable, Iterable
+from collections.abc import Callable, Hashable, Iterable, Iterator
+from contextlib import contextmanager
 from dataclasses import dataclass, field
 
 import z3
@@ -245,12 +246,30 @@ class Queries:
             s.pop()
 
 
+@contextmanager
+def uncompacted_models() -> Iterator[None]:
+    """Models without compaction (merging function tables), a global z3 setting, for
+    the duration: ours have no functions, and compacting took a third of each call
+    (measured with benchmarks/bench_lint.py)."""
+    before = z3.get_param("model.compact")
+    z3.set_param("model.compact", False)
+    try:
+        yield
+    finally:
+        z3.set_param("model.compact", before)
+
+
 def _check(solver: z3.Solver, assumptions: list[z3.BoolRef]) -> z3.CheckSatResult:
     """`solver.check(*assumptions)` through the C API: `check` converts every literal in Python."""
     arr = (z3.Ast * len(assumptions))()
     for i, a in enumerate(assumptions):
         arr[i] = a.as_ast()
     return z3.CheckSatResult(z3.Z3_solver_check_assumptions(solver.ctx.ref(), solver.solver, len(assumptions), arr))
+
+
+def add_all(solver: z3.Solver, formulas: list[z3.BoolRef]) -> None:
+    """`solver.add(*formulas)` without its Python conversions (thousands of constraints)."""
+    _assert(solver, formulas)
 
 
 def _assert(solver: z3.Solver, formulas: list[z3.BoolRef]) -> None:

@@ -11,6 +11,7 @@ from logiccheck.checks.context import LintContext
 from logiccheck.checks.registry import register
 from logiccheck.checks.routing.common import analysis
 from logiccheck.diagnostics import Diagnostic, Span
+from logiccheck.logic.solve import add_all
 
 # Seconds to answer one item of each type, before reading time. Common practice, no
 # source: rough figures survey teams use for self-completion; override per item with
@@ -92,7 +93,7 @@ def route_length(ctx: LintContext) -> Iterable[Diagnostic]:
     results = []
     solver = z3.SimpleSolver()
     solver.set("relevancy", 0)  # faster here, as in the routing cover
-    solver.add(*a.enc.facts())
+    add_all(solver, a.enc.facts())
     start = time.monotonic()
     for number, goal in enumerate(("min", "max")):
         found = _extreme(solver, count, len(items), goal, a.stats, start + BUDGET_S * (number + 1) / 2)
