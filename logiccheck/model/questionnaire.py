@@ -138,14 +138,15 @@ class Questionnaire:
         if entry.kind == "let":
             return self.let_kinds.get(name, "unknown")
         kind = entry.stmt.type.kind
-        return {
+        kinds: dict[str, ValueKind] = {
             "single": "coded",
             "multi": "set",
             "number": "number",
             "decimal": "number",
             "text": "text",
             "note": "note",
-        }[kind]
+        }
+        return kinds[kind]
 
     def guards(self, entry: Entry) -> tuple[list[Entry], list[Entry]]:
         """The stops before `entry`, and the skips whose span covers it."""

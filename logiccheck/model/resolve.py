@@ -131,7 +131,10 @@ class Resolver:
                 )
             )
             return
-        (q.sections if isinstance(block, n.Section) else q.grids)[block.name] = block
+        if isinstance(block, n.Section):
+            q.sections[block.name] = block
+        else:
+            q.grids[block.name] = block
 
     def add(self, stmt: Any, section: n.Section | None, grid: n.Grid | None, context: list[tuple[Any, Any]]) -> Entry:
         entry = Entry(index=len(self.q.entries), stmt=stmt, section=section, grid=grid, context=list(context))
@@ -336,15 +339,15 @@ class Resolver:
                 isinstance(side, n.Ref) and side.name not in q.symbols and not self.is_any_label(side.name)
                 for side in (expr.left, expr.right)
             )
-            update = {}
+            sides: dict[str, Any] = {}
             for key, side in (("left", expr.left), ("right", expr.right)):
                 if isinstance(side, n.Ref) and side.name not in q.symbols:
                     # A label beside a name that is not coded was judged above; beside
                     # an unknown name it is most likely that item's label.
                     if self.is_any_label(side.name) or (unknown_side and self.is_constant_like(expr, side)):
                         continue
-                update[key] = self.resolve(side, entry, role)
-            return expr.model_copy(update=update)
+                sides[key] = self.resolve(side, entry, role)
+            return expr.model_copy(update=sides)
         if isinstance(expr, n.InList):
             coded = self.coded_subject(expr.subject)
             subject = self.resolve(expr.subject, entry, role)
