@@ -89,9 +89,9 @@ def render_validation(console: Console, result: ValidationResult, *, show: int =
     console.print()
     disp = ", ".join(f"{k} {v}" for k, v in result.dispositions.items())
     console.print(f"dispositions: {disp}", highlight=False)
-    sev = result.severity_counts()
+    totals = result.severity_counts()
     parts = [
-        f"[{STYLE[k]}]{v} {k}{'s' if v != 1 else ''}[/{STYLE[k]}]" if v else f"0 {k}s" for k, v in sev.items()
+        f"[{STYLE[k]}]{v} {k}{'s' if v != 1 else ''}[/{STYLE[k]}]" if v else f"0 {k}s" for k, v in totals.items()
     ]
     console.print(f"{result.respondents} respondents validated: " + ", ".join(parts), highlight=False)
     for note in result.notes:

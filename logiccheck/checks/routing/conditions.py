@@ -26,6 +26,7 @@ def _reachable(a, st: Statement) -> bool:  # type: ignore[no-untyped-def]
     if st.key.startswith("let:"):
         return True
     entry = st.entry
+    assert entry is not None  # only section/grid statements have no entry
     if st.key.startswith("require:"):
         return a.facts.possible(("fires", entry.index))
     return a.facts.possible(("reached", entry.index))
@@ -122,6 +123,7 @@ def missing_sensitive(ctx: LintContext) -> Iterable[Diagnostic]:
             continue
         reading = hits[0]
         model = a.facts.model(("sensitive", st.key, reading))
+        assert model is not None  # possible() above: the question has a model
         ours, _ = a.enc.truth(st.expr, at=st.at)
         holds = z3.is_true(model.eval(ours, model_completion=True))
         text = a.enc.source(st.expr.span)
@@ -176,7 +178,8 @@ def _as_range(ctx: LintContext, st: Statement, name: str, lo: float, hi: float, 
     for node in n.walk(st.expr):
         if not isinstance(node, n.Compare) or node.op not in ("<", "<=", ">", ">="):
             continue
-        left, right, op = node.left, node.right, node.op
+        left, right = node.left, node.right
+        op: str = node.op
         if isinstance(right, n.Ref) and isinstance(left, n.Num):
             left, right, op = right, left, {"<": ">", "<=": ">=", ">": "<", ">=": "<="}[op]
         if not (isinstance(left, n.Ref) and left.name == name and isinstance(right, n.Num)):

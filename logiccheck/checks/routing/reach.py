@@ -48,7 +48,7 @@ def unreachable_item(ctx: LintContext) -> Iterable[Diagnostic]:
     dead_blocks: set[str] = set()
     # Blocks first, outermost first: what lies inside a dead block is not repeated.
     for name, block in a.enc.blocks.items():
-        key = ("block", name)
+        key: tuple[str, str | int] = ("block", name)  # ("asked", index) etc. below
         if key not in a.questions or a.facts.possible(key):
             continue
         if any(o.name in dead_blocks for o, _ in block.context[:-1]):
