@@ -290,7 +290,7 @@ class RoutingAnalysis:
         parts: dict[int, dict[Hashable, z3.BoolRef]] = {}
         part_roots: dict[int, set[str]] = {}
         for key, formula in self.questions.items():
-            if only is not None and key[0] not in only:
+            if only is not None and _kind_of(key) not in only:
                 continue
             roots = [r for r in self.roots[key] if r in part_of]
             k = part_of[roots[0]] if roots else -1
@@ -301,21 +301,21 @@ class RoutingAnalysis:
         # in all of them, which saves more calls than the larger solver costs.
         groups: list[tuple[dict[Hashable, z3.BoolRef], set[str] | None]] = []
         current: dict[Hashable, z3.BoolRef] = {}
-        roots: set[str] = set()
+        group_roots: set[str] = set()
         for k in sorted(parts, key=lambda k: (k < 0, k)):
             if k < 0:
                 groups.append((parts[k], None))
                 continue
             current.update(parts[k])
-            roots |= part_roots[k]
+            group_roots |= part_roots[k]
             if len(current) >= GROUP_QUESTIONS:
-                groups.append((current, self.closure(roots)))
-                current, roots = {}, set()
+                groups.append((current, self.closure(group_roots)))
+                current, group_roots = {}, set()
         if current:
-            groups.append((current, self.closure(roots)))
+            groups.append((current, self.closure(group_roots)))
         total = Cover()
         for questions, subjects in groups:
-            got = self.queries.cover(questions, subjects, first=lambda key: key[0] in ("asked", "reached", "block"))
+            got = self.queries.cover(questions, subjects, first=lambda key: _kind_of(key) in ("asked", "reached", "block"))
             total.models.update(got.models)
             total.unsat.update(got.unsat)
         return total
@@ -405,6 +405,11 @@ class RoutingAnalysis:
                 if target.kind == "item":
                     stack.extend(e for e in target.conditions())
         return names
+
+
+def _kind_of(key: Hashable) -> Hashable:
+    """The kind of a question: the first part of its key (every key is a tuple)."""
+    return key[0] if isinstance(key, tuple) else key
 
 
 def _xor(a: z3.BoolRef, b: z3.BoolRef) -> z3.BoolRef:

@@ -140,7 +140,7 @@ def build_drawing(q: Questionnaire) -> Drawing:
                     id=gid,
                     name=owner.name,
                     kind="grid" if isinstance(owner, n.Grid) else "section",
-                    title=getattr(owner, "title", None) or getattr(owner, "text", ""),
+                    title=owner.title if isinstance(owner, n.Section) else owner.text,
                     parent=parent,
                     shuffled=bool(getattr(owner, "shuffled", False)),
                     condition=span_text(q.text, owner.when.span) if owner.when is not None else None,
@@ -167,8 +167,11 @@ def build_drawing(q: Questionnaire) -> Drawing:
             if source is None:
                 continue
             if read.via == "context":
-                target = group_ids[id(read.owner)]
-                label = span_text(q.text, read.owner.when.span)
+                owner = read.owner
+                # A context read comes from its section's or grid's condition.
+                assert owner is not None and owner.when is not None
+                target = group_ids[id(owner)]
+                label = span_text(q.text, owner.when.span)
             elif read.via == "pipe":
                 target, label = target_node, "pipe"
             elif read.via == "let":
