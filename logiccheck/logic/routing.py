@@ -36,6 +36,14 @@ class Statement:
     entry: Entry | None
     effect: str  # "true": a condition that routes; "value": a derived value
 
+    @property
+    def root(self) -> str:
+        """The subject questions about this statement start from: its section or grid
+        (`block:NAME`, the only statements without an entry), else its entry."""
+        if self.key.startswith("block:") or self.entry is None:
+            return self.key
+        return f"entry:{self.entry.index}"
+
 
 @dataclass
 class RoutingFacts:
@@ -190,7 +198,7 @@ class RoutingAnalysis:
                 ask.roots = [f"block:{name}"]
                 ask[("block", name)] = enc.block_reached(name)
         for st in self.statements:
-            ask.roots = [st.key if st.key.startswith("block:") else f"entry:{st.entry.index}"]  # type: ignore[union-attr]
+            ask.roots = [st.root]
             if st.key.startswith("block:"):
                 ask[("st-reach", st.key)] = st.reach
             try:

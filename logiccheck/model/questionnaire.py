@@ -10,6 +10,7 @@ from logiccheck.model import nodes as n
 
 # What a name stands for, as conditions see it.
 ValueKind = Literal["coded", "set", "number", "text", "note", "bool", "unknown"]
+RefRole = Literal["condition", "context", "pipe", "let", "check", "skip-target"]
 
 
 @dataclass
@@ -70,7 +71,7 @@ class Reference:
     entry: int  # index of the reading entry
     name: str
     span: Span
-    role: Literal["condition", "context", "pipe", "let", "check", "skip-target"]
+    role: RefRole
 
 
 @dataclass

@@ -18,6 +18,8 @@ from logiccheck.model import nodes as n
 from logiccheck.model.questionnaire import Entry, Questionnaire
 
 NodeKind = Literal["item", "gate", "let", "sample", "stop", "skip"]
+# Every other entry kind draws as itself (items are items or gates; checks are not drawn).
+_ENTRY_NODE_KIND: dict[str, NodeKind] = {"let": "let", "sample": "sample", "stop": "stop", "skip": "skip"}
 MAX_LABEL = 60  # longer condition texts are cut with an ellipsis
 
 
@@ -151,7 +153,7 @@ def build_drawing(q: Questionnaire) -> Drawing:
         if entry.kind == "item":
             kind = "gate" if entry.stmt.flags.gate else "item"
         else:
-            kind = entry.kind  # type: ignore[assignment]
+            kind = _ENTRY_NODE_KIND[entry.kind]
         nid = _node_id(entry)
         entry_nodes[entry.index] = nid
         drawing.nodes[nid] = DrawNode(nid, entry.name, kind, _detail(q, entry.stmt), parent, entry.span.line)

@@ -215,7 +215,7 @@ def draw_picture(picture: FlowPicture, name: str = "", *, legend: bool = True) -
 
 def _centre(patch: Any) -> tuple[float, float]:
     if hasattr(patch, "center"):
-        return tuple(patch.center)  # type: ignore[return-value]
+        return tuple(patch.center)
     return patch.get_x() + patch.get_width() / 2, patch.get_y() + patch.get_height() / 2
 
 
