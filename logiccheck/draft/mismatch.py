@@ -11,7 +11,7 @@ from logiccheck.checks.data_context import DataContext
 from logiccheck.checks.registry import data_check
 from logiccheck.data import causes
 from logiccheck.data.findings import Hits
-from logiccheck.draft.mine import Mined, Var, mine
+from logiccheck.draft.mine import Mined, Var, mine, sample_rows
 
 # "Far better": the mined condition must explain at least this share of respondents more
 # than the spec's own and leave at most half of its errors. Common practice, no source.
@@ -62,14 +62,19 @@ def own_condition(ctx: DataContext, name: str) -> str:
 
 def alive_before(ctx: DataContext, name: str) -> np.ndarray:
     """Respondents no stop ended before the item."""
-    q = ctx.q
-    at = q.symbols[name].index
-    index = {e.name: e.index for e in q.entries if e.kind == "stop"}
-    stop_at = np.array([index.get(s, 1 << 30) if s else 1 << 30 for s in ctx.stop.tolist()], dtype=np.int64)
-    return stop_at > at
+    stop_at = ctx.memo.get("draft.stop_at")
+    if stop_at is None:
+        # Where each respondent's stop sits, once per run (one lookup per distinct stop).
+        index = {e.name: e.index for e in ctx.q.entries if e.kind == "stop"}
+        names, inverse = np.unique(ctx.stop.astype(str), return_inverse=True)
+        at_name = np.array([index.get(s, 1 << 30) if s else 1 << 30 for s in names.tolist()], dtype=np.int64)
+        stop_at = at_name[inverse.reshape(-1)]
+        ctx.memo["draft.stop_at"] = stop_at
+    return np.asarray(stop_at) > ctx.q.symbols[name].index
 
 
-def compare(ctx: DataContext, vars_: list[Var], j: int, need: float = 0) -> tuple[Mined, int] | None:
+def compare(ctx: DataContext, vars_: list[Var], j: int, need: float = 0,
+            small: list[Var] | None = None) -> tuple[Mined, int] | None:
     """The best mined condition for item `j` and how many respondents its own routing
     explains; None when nobody answered it, or when its own routing leaves fewer than
     `need` respondents unexplained (no condition can then gain `need`: mining is skipped)."""
@@ -79,7 +84,9 @@ def compare(ctx: DataContext, vars_: list[Var], j: int, need: float = 0) -> tupl
     own = int((ctx.due[:, j] == answered).sum())
     if ctx.n - own < need:
         return None
-    mined = mine(vars_[:j], answered, alive_before(ctx, ctx.items[j]))
+    sample = sample_rows(ctx.n) if small is not None else None
+    mined = mine(vars_[:j], answered, alive_before(ctx, ctx.items[j]), sample=sample,
+                 sampled=small[:j] if small is not None else None)
     return mined, own
 
 
@@ -117,9 +124,11 @@ def routing_mismatch(ctx: DataContext) -> Iterator[Hits]:
         return
     vars_ = context_vars(ctx)
     by_name = {v.name: v for v in vars_}
+    sample = sample_rows(n)
+    small = [v.subset(sample) for v in vars_] if sample is not None else None
     none = np.array([], dtype=np.int64)
     for j, name in enumerate(ctx.items):
-        got = compare(ctx, vars_, j, need)
+        got = compare(ctx, vars_, j, need, small)
         if got is None:
             continue
         mined, own = got

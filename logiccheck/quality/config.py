@@ -43,6 +43,11 @@ class DuplicateConfig(_Strict):
     # Exact copies count only among respondents with at least this many answers: short
     # routes coincide by chance (common practice, no source).
     exact_min_answered: int = Field(default=10, ge=1)
+    # Candidate pairs per respondent the exact near-duplicate search may compare (about
+    # 0.5 µs each on 300 items); parts of the search beyond it are skipped, said in a
+    # note, and the maximum percent match is then estimated on a sample. 0 = no limit.
+    # Measured on this project's benchmarks, no outside source.
+    near_search_budget: int = Field(default=20, ge=0)
     # The four settings below are read only by the older `quality.run.run_quality` path
     # (pairs over the items asked of either respondent, with a size budget); the
     # `near-duplicate` check ignores them. They go when that path is retired.
@@ -112,6 +117,7 @@ SOURCES: dict[str, str] = {
     "duplicates.near_min_items": "common practice, no source",
     "duplicates.near_max_work": "older run_quality path only: a budget measured on this project's benchmark",
     "duplicates.exact_min_answered": "common practice, no source",
+    "duplicates.near_search_budget": "measured on this project's benchmarks, no outside source",
     "careless.pattern_max_period": "common practice, no source",
     "completeness.nonresponse_counts_as_answered": "the issue's default: a non-response code is an answer",
     "careless.min_rows": "common practice, no source",
