@@ -11,7 +11,7 @@ from logiccheck.checks.data_context import DataContext
 from logiccheck.checks.registry import data_check
 from logiccheck.data import causes
 from logiccheck.data.findings import Hits
-from logiccheck.draft.mine import Mined, Var, mine, sample_rows
+from logiccheck.draft.mine import Mined, Var, explained, mine, sample_rows, search
 
 # "Far better": the mined condition must explain at least this share of respondents more
 # than the spec's own and leave at most half of its errors. Common practice, no source.
@@ -90,6 +90,39 @@ def compare(ctx: DataContext, vars_: list[Var], j: int, need: float = 0,
     return mined, own
 
 
+# Rows of the first, quick search: an item whose best condition gains less than half the
+# needed share there is not searched on the full sample (at 2,000 rows a 2 % gain is
+# about 6 standard deviations above 1 %; measured: the miner's cost is mostly this pass).
+SCREEN_ROWS = 2_000
+
+
+class Screen:
+    """A quick search on a small random sample that rules out items no condition helps."""
+
+    def __init__(self, ctx: DataContext, vars_: list[Var], need: float) -> None:
+        self.ctx = ctx
+        self.rows: np.ndarray | None = None
+        if ctx.n > 2 * SCREEN_ROWS:
+            rng = np.random.default_rng(1)
+            self.rows = np.sort(rng.choice(ctx.n, size=SCREEN_ROWS, replace=False))
+            self.vars = [v.subset(self.rows) for v in vars_]
+            self.need = need * SCREEN_ROWS / ctx.n
+
+    def promising(self, j: int) -> bool:
+        """Whether item `j` is worth the full search (always, without a screen sample)."""
+        if self.rows is None:
+            return True
+        ctx, rows = self.ctx, self.rows
+        answered = ctx.has_value[rows, j]
+        own = int((ctx.due[rows, j] == answered).sum())
+        if rows.size - own < self.need / 2:
+            return False
+        alive = alive_before(ctx, ctx.items[j])[rows]
+        cond = search(self.vars[:j], answered, alive)
+        got = explained(cond, {v.name: v for v in self.vars[:j]}, answered, alive)
+        return got - own >= self.need / 2
+
+
 @data_check(
     "routing-mismatch",
     severity="warning",
@@ -126,8 +159,11 @@ def routing_mismatch(ctx: DataContext) -> Iterator[Hits]:
     by_name = {v.name: v for v in vars_}
     sample = sample_rows(n)
     small = [v.subset(sample) for v in vars_] if sample is not None else None
+    screen = Screen(ctx, vars_, need)
     none = np.array([], dtype=np.int64)
     for j, name in enumerate(ctx.items):
+        if not screen.promising(j):
+            continue
         got = compare(ctx, vars_, j, need, small)
         if got is None:
             continue
