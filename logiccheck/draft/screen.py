@@ -81,10 +81,11 @@ def single_errors(vars_: list[Var], answered: np.ndarray, alive: np.ndarray) -> 
             tp, fp = a.T @ chosen, b.T @ chosen  # items × options
             has = (a.sum(axis=0)[:, None] - tp) + fp
             out[:, c] = np.minimum(out[:, c], has.min(axis=1))
-        if v.kind in ("text", "multi", "number", "coded"):
-            present = v.present.astype(np.float64)
-            answered_err = a.T @ (1 - present) + b.T @ present
-            out[:, c] = np.minimum(out[:, c], answered_err)
+    # `answered` on every column at once: answered rows without a value, blank rows with one.
+    present = np.column_stack([v.present for v in vars_]).astype(np.float64) if vars_ else np.zeros((rows, 0))
+    answered_err = a.T @ (1 - present) + b.T @ present
+    usable = np.array([v.kind in ("text", "multi", "number", "coded") for v in vars_], dtype=bool)
+    out[:, usable] = np.minimum(out[:, usable], answered_err[:, usable])
     return out
 
 
