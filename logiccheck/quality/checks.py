@@ -127,7 +127,7 @@ def duplicate_response(ctx: DataContext) -> Iterator[Hits]:
     "85 %), and a pair above the threshold must, in some block, agree on all but at most one of the items "
     "both answered (a pigeonhole argument, as in multi-index hashing: Norouzi, Punjani & Fleet 2014), so "
     "only pairs that meet in some block are compared. The search spends at most `near_search_budget` "
-    "candidate pairs per respondent (default 20; 0 = no limit); answers with little spread can need more, and "
+    "candidate pairs per respondent (default 10; 0 = no limit); answers with little spread can need more, and "
     "the run then says in a note which blocks were left out and estimates the maximum percent match on 10 "
     "respondents drawn at random. Respondents reported as `duplicate-response` are left to that check.",
     why="Near-copies point at interviews fabricated by editing a real one.",

@@ -47,7 +47,7 @@ class DuplicateConfig(_Strict):
     # 0.5 µs each on 300 items); parts of the search beyond it are skipped, said in a
     # note, and the maximum percent match is then estimated on a sample. 0 = no limit.
     # Measured on this project's benchmarks, no outside source.
-    near_search_budget: int = Field(default=20, ge=0)
+    near_search_budget: int = Field(default=10, ge=0)
     # The four settings below are read only by the older `quality.run.run_quality` path
     # (pairs over the items asked of either respondent, with a size budget); the
     # `near-duplicate` check ignores them. They go when that path is retired.
