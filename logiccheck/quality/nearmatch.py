@@ -324,6 +324,9 @@ def candidate_pairs(
     for cols in blocks:
         sub = codes[np.ix_(rows, cols)]
         live = (sub != 0).any(axis=1)
+        if _hopeless(sub[live], cov):
+            cov.skip(cols)
+            continue
         # Same codes, blanks included, except at most one position: same pattern with at
         # most one mismatch, or patterns differing at one position with no mismatch.
         members, starts, lengths, count = _collide(wildcard_keys(sub[live]), rows[live])
@@ -335,9 +338,33 @@ def candidate_pairs(
         yield from _joins(codes, rows, cols, cov)
 
 
+# Above this many rows a block's candidate count is first estimated on a sample of them:
+# a block far beyond the budget is skipped without sorting all its keys.
+ESTIMATE_ROWS = 10_000
+
+
+def _hopeless(sub: np.ndarray, cov: Coverage) -> bool:
+    """Whether a block's same-pattern candidates, estimated on ESTIMATE_ROWS random rows
+    (pairs grow with the square of the rows), exceed four times what is left of the
+    budget; the estimate is then recorded as skipped."""
+    if cov.budget is None or sub.shape[0] <= 2 * ESTIMATE_ROWS:
+        return False
+    rng = np.random.default_rng(sub.shape[0])
+    part = sub[rng.choice(sub.shape[0], size=ESTIMATE_ROWS, replace=False)]
+    count = _collide(wildcard_keys(part), np.arange(ESTIMATE_ROWS))[3]
+    estimate = count * (sub.shape[0] / ESTIMATE_ROWS) ** 2
+    if estimate > 4 * (cov.budget - cov.candidates):
+        cov.skipped_pairs += int(estimate)
+        return True
+    return False
+
+
 def _joins(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, cov: Coverage) -> Iterator[tuple[np.ndarray, np.ndarray]]:
     """Pairs of different answered patterns in one block, joined on the items both
     answered with one mismatch allowed; cheapest joins first while the budget lasts."""
+    if cov.budget is not None and cov.budget - cov.candidates < JOIN_COST:
+        cov.skip(cols)  # not even one join fits (whether the block needs any is not known)
+        return
     sub = codes[np.ix_(rows, cols)]
     pattern = ((sub != 0).astype(np.int64) << np.arange(len(cols), dtype=np.int64)).sum(axis=1)
     live = np.flatnonzero(pattern != 0)
