@@ -362,12 +362,15 @@ def _hopeless(sub: np.ndarray, cov: Coverage) -> bool:
 def _joins(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, cov: Coverage) -> Iterator[tuple[np.ndarray, np.ndarray]]:
     """Pairs of different answered patterns in one block, joined on the items both
     answered with one mismatch allowed; cheapest joins first while the budget lasts."""
-    if cov.budget is not None and cov.budget - cov.candidates < JOIN_COST:
-        cov.skip(cols)  # not even one join fits (whether the block needs any is not known)
-        return
     sub = codes[np.ix_(rows, cols)]
     pattern = ((sub != 0).astype(np.int64) << np.arange(len(cols), dtype=np.int64)).sum(axis=1)
     live = np.flatnonzero(pattern != 0)
+    if live.size == 0 or pattern[live].min() == pattern[live].max():
+        return  # one answered pattern: nothing to join
+    if cov.budget is not None and cov.budget - cov.candidates < JOIN_COST:
+        cov.skipped_pairs += JOIN_COST  # not even one join fits
+        cov.skip(cols)
+        return
     order = live[np.argsort(pattern[live], kind="stable")]
     present, first, sizes = _pattern_runs(pattern[order])
     k = present.size
