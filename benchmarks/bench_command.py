@@ -132,7 +132,13 @@ def run_measured(cmd: list[str], ok: tuple[int, ...] = (0, 1)) -> dict[str, floa
     wall = time.perf_counter() - t0
     if proc.returncode not in ok:
         raise SystemExit(f"{' '.join(cmd)} failed ({proc.returncode}):\n{err}")
-    return {"wall": wall, "cpu": usage.ru_utime + usage.ru_stime, "peak_mb": usage.ru_maxrss / 1024}
+    out: dict[str, float] = {"wall": wall, "cpu": usage.ru_utime + usage.ru_stime, "peak_mb": usage.ru_maxrss / 1024}
+    # `validate --timings` lines: the command's own split by stage and check.
+    for text in err.splitlines():
+        if text.startswith("logiccheck: time: "):
+            name, _, seconds = text[len("logiccheck: time: "):].rstrip(" s").rpartition(" ")
+            out[f"time: {name.strip()}"] = float(seconds)
+    return out
 
 
 def prepare(cache: Path, rows: int, gates: int, parquet: bool) -> tuple[Path, Path]:
@@ -197,8 +203,11 @@ def main() -> None:
         print(f"{rows:,} respondents × {3 * args.gates} items, {data.suffix[1:]} {size:,.0f} MB")
         bare = run_measured([*me, "pyarrow", str(data), str(spec), str(args.gates)], ok=(0,))
         print(line("bare pyarrow read", bare, None))
-        cmd = run_measured([sys.executable, "-m", "logiccheck", "validate", str(spec), "--data", str(data), "--format", "json"])
+        cmd = run_measured([sys.executable, "-m", "logiccheck", "validate", str(spec), "--data", str(data), "--format", "json",
+                            "--timings"])
         print(line("logiccheck validate (command)", cmd, bare))
+        split = sorted(((k[6:], v) for k, v in cmd.items() if k.startswith("time: ") and "total" not in k), key=lambda kv: -kv[1])
+        print("    of which: " + ", ".join(f"{k} {v:.1f} s" for k, v in split[:6]))
         routing = run_measured([sys.executable, str(ROOT / "benchmarks" / "bench_validate.py"), "--child", "validate",
                                 str(data), str(spec)])
         print(line("routing stage only (library)", routing, bare))
