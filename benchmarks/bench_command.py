@@ -120,8 +120,9 @@ def child(mode: str, path: str, spec: str, gates: int) -> None:
         _polars_items(pl, frame, gates)
 
 
-def run_measured(cmd: list[str]) -> dict[str, float]:
-    """Wall, CPU and peak memory of one child process (rusage of that child alone)."""
+def run_measured(cmd: list[str], ok: tuple[int, ...] = (0, 1)) -> dict[str, float]:
+    """Wall, CPU and peak memory of one child process (rusage of that child alone).
+    `ok`: exit codes that count as a run (validate exits 1 when it finds errors)."""
     t0 = time.perf_counter()
     with open(os.devnull, "wb") as null:
         proc = subprocess.Popen(cmd, stdout=null, stderr=subprocess.PIPE, cwd=ROOT)
@@ -129,9 +130,15 @@ def run_measured(cmd: list[str]) -> dict[str, float]:
         proc.returncode = os.waitstatus_to_exitcode(status)
         err = proc.stderr.read().decode(errors="replace") if proc.stderr else ""
     wall = time.perf_counter() - t0
-    if proc.returncode not in (0, 1):  # validate exits 1 when it finds errors
+    if proc.returncode not in ok:
         raise SystemExit(f"{' '.join(cmd)} failed ({proc.returncode}):\n{err}")
-    return {"wall": wall, "cpu": usage.ru_utime + usage.ru_stime, "peak_mb": usage.ru_maxrss / 1024}
+    out: dict[str, float] = {"wall": wall, "cpu": usage.ru_utime + usage.ru_stime, "peak_mb": usage.ru_maxrss / 1024}
+    # `validate --timings` lines: the command's own split by stage and check.
+    for text in err.splitlines():
+        if text.startswith("logiccheck: time: "):
+            name, _, seconds = text[len("logiccheck: time: "):].rstrip(" s").rpartition(" ")
+            out[f"time: {name.strip()}"] = float(seconds)
+    return out
 
 
 def prepare(cache: Path, rows: int, gates: int, parquet: bool) -> tuple[Path, Path]:
@@ -139,21 +146,31 @@ def prepare(cache: Path, rows: int, gates: int, parquet: bool) -> tuple[Path, Pa
     spec = cache / f"bench_{gates}.qlc"
     spec.write_text(make_spec(gates), encoding="utf-8")
     data = cache / f"export_{gates}_{rows}.csv"
+    # Made in a child process: Linux keeps a process's peak memory across exec, so the
+    # measured children must not be forked from a parent that held a whole export.
     if not data.exists():
-        from logiccheck.loader import load_text
-
         t = time.perf_counter()
-        generate(data, rows, load_text(make_spec(gates), spec.name).questionnaire, faults=0.001)
+        subprocess.run([sys.executable, __file__, "--make", str(data), str(rows), str(gates)], check=True, cwd=ROOT)
         print(f"generated {data.name} in {time.perf_counter() - t:.1f} s", file=sys.stderr)
     if parquet:
         pq_path = data.with_suffix(".parquet")
         if not pq_path.exists():
-            import pyarrow.csv as pacsv
-            import pyarrow.parquet as pq
-
-            pq.write_table(pacsv.read_csv(data), pq_path)
+            subprocess.run([sys.executable, __file__, "--make", str(pq_path), "0", str(gates)], check=True, cwd=ROOT)
         data = pq_path
     return spec, data
+
+
+def make(path: Path, rows: int, gates: int) -> None:
+    """The export (CSV), or a Parquet copy of the CSV beside it (rows = 0)."""
+    if path.suffix == ".parquet":
+        import pyarrow.csv as pacsv
+        import pyarrow.parquet as pq
+
+        pq.write_table(pacsv.read_csv(path.with_suffix(".csv")), path)
+        return
+    from logiccheck.loader import load_text
+
+    generate(path, rows, load_text(make_spec(gates), "bench.qlc").questionnaire, faults=0.001)
 
 
 def line(name: str, m: dict[str, float], base: dict[str, float] | None) -> str:
@@ -170,7 +187,11 @@ def main() -> None:
     parser.add_argument("--no-competitors", action="store_true", help="skip the DuckDB and polars figures")
     parser.add_argument("--cache", default=os.path.join(tempfile.gettempdir(), "logiccheck-bench"))
     parser.add_argument("--child", nargs=4, help=argparse.SUPPRESS)
+    parser.add_argument("--make", nargs=3, help=argparse.SUPPRESS)
     args = parser.parse_args()
+    if args.make:
+        make(Path(args.make[0]), int(args.make[1]), int(args.make[2]))
+        return
     if args.child:
         mode, path, spec, gates = args.child
         child(mode, path, spec, int(gates))
@@ -180,17 +201,20 @@ def main() -> None:
         spec, data = prepare(Path(args.cache), rows, args.gates, fmt == "parquet")
         size = data.stat().st_size / 1e6
         print(f"{rows:,} respondents × {3 * args.gates} items, {data.suffix[1:]} {size:,.0f} MB")
-        bare = run_measured([*me, "pyarrow", str(data), str(spec), str(args.gates)])
+        bare = run_measured([*me, "pyarrow", str(data), str(spec), str(args.gates)], ok=(0,))
         print(line("bare pyarrow read", bare, None))
-        cmd = run_measured([sys.executable, "-m", "logiccheck", "validate", str(spec), "--data", str(data), "--format", "json"])
+        cmd = run_measured([sys.executable, "-m", "logiccheck", "validate", str(spec), "--data", str(data), "--format", "json",
+                            "--timings"])
         print(line("logiccheck validate (command)", cmd, bare))
+        split = sorted(((k[6:], v) for k, v in cmd.items() if k.startswith("time: ") and "total" not in k), key=lambda kv: -kv[1])
+        print("    of which: " + ", ".join(f"{k} {v:.1f} s" for k, v in split[:6]))
         routing = run_measured([sys.executable, str(ROOT / "benchmarks" / "bench_validate.py"), "--child", "validate",
                                 str(data), str(spec)])
         print(line("routing stage only (library)", routing, bare))
         if not args.no_competitors:
             for mode, name in (("duckdb", "DuckDB SQL per-item counts"), ("polars", "polars per-item counts")):
                 try:
-                    m = run_measured([*me, mode, str(data), str(spec), str(args.gates)])
+                    m = run_measured([*me, mode, str(data), str(spec), str(args.gates)], ok=(0,))
                 except SystemExit as err:
                     print(f"  {name}: not measured ({str(err).splitlines()[0]})")
                     continue

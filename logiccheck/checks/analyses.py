@@ -9,6 +9,7 @@ appends to the cleaned export (e.g. `score_NAME`, `weight`), and keys for `clean
 from __future__ import annotations
 
 import importlib
+import time
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Any
@@ -57,11 +58,15 @@ def all_analyses() -> dict[str, AnalysisRunner]:
     return dict(_ANALYSES)
 
 
-def run_analyses(ctx: DataContext) -> dict[str, Analysis]:
-    """Every registered analysis that has something to say for this run."""
+def run_analyses(ctx: DataContext, timings: dict[str, float] | None = None) -> dict[str, Analysis]:
+    """Every registered analysis that has something to say for this run (`timings`:
+    filled with each one's seconds, where given)."""
     out: dict[str, Analysis] = {}
     for name, fn in all_analyses().items():
+        started = time.perf_counter()
         result = fn(ctx)
+        if timings is not None:
+            timings[f"analysis {name}"] = time.perf_counter() - started
         if result is not None:
             out[name] = result
     return out

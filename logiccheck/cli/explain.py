@@ -36,8 +36,8 @@ def explain_command(check: str | None, color: str) -> None:
             table.add_row(info.name, info.severity.value, info.stage, info.summary)
         console.print(table)
         return
-    info = checks.get(check)
-    if info is None:
+    found = checks.get(check)
+    if found is None:
         hint = did_you_mean(check, checks) or "; `logiccheck explain` lists them"
         fail(f"no check is called `{check}`{hint}")
-    click.echo(check_docs(info))
+    click.echo(check_docs(found))

@@ -139,6 +139,7 @@ def spec_note(loaded: Loaded) -> str | None:
 @click.option("--format", "fmt", type=click.Choice(DATA_FORMATS), default="text", show_default=True)
 @click.option("--out", "out", type=click.Path(), help="With --format csv: write items.csv and findings.csv in this folder; with --format html: the report file.")
 @click.option("--margins", "margins_file", type=click.Path(dir_okay=False), help="Population margins (TOML): the sample against the population, per category.")
+@click.option("--timings", is_flag=True, help="After the output, print seconds per stage, check and analysis to standard error.")
 @fail_on_option
 @color_option
 def validate_command(
@@ -153,10 +154,12 @@ def validate_command(
     fmt: str,
     out: str | None,
     margins_file: str | None,
+    timings: bool,
     fail_on: str | None,
     color: str,
 ) -> None:
     """Check an export against the spec's routing: off-route answers, missing, invalid values."""
+    started = time.perf_counter()
     loaded = load_spec(spec)
     note = spec_note(loaded)
     options = run_options(map_file, frame, encoding, delimiter, chunk_rows, margins=margins_file)
@@ -171,4 +174,19 @@ def validate_command(
             click.echo(f"logiccheck: wrote {path}", err=True)
     else:
         emit_validation(result, fmt, color, show, out, loaded, fail_on)
+    if timings:
+        write_timings(result.timings, time.perf_counter() - started)
     sys.exit(validation_status(result, fail_on))
+
+
+def write_timings(timings: dict[str, float], total: float) -> None:
+    """Seconds per stage, check and analysis, slowest first, then the rest and the total
+    (standard error, so the output itself stays as it is)."""
+    rows = sorted(timings.items(), key=lambda kv: -kv[1])
+    width = max((len(k) for k, _ in rows), default=10)
+    for name, seconds in rows:
+        if seconds >= 0.005:
+            click.echo(f"logiccheck: time: {name:<{width}} {seconds:8.2f} s", err=True)
+    rest = total - sum(timings.values())
+    click.echo(f"logiccheck: time: {'spec, output and the rest':<{width}} {rest:8.2f} s", err=True)
+    click.echo(f"logiccheck: time: {'total (command)':<{width}} {total:8.2f} s", err=True)

@@ -8,7 +8,7 @@ import numpy as np
 
 from logiccheck.data.evaluate import BLANK, INVALID, NOT_ASKED, OFF_ROUTE, UNKNOWN, Guard
 from logiccheck.model import nodes as n
-from logiccheck.model.questionnaire import Questionnaire
+from logiccheck.model.questionnaire import Entry, Questionnaire
 
 
 def source_of(q: Questionnaire, node: Any) -> str:
@@ -103,6 +103,6 @@ def off_route_message(q: Questionnaire, item: str, g: Guard, keys: np.ndarray) -
     parts = [f"{f} ({', '.join(inputs[i])})" if i in inputs else f for i, f in enumerate(facts)]
     said = " and ".join(parts) if parts else "the condition does not hold"
     message = f"`{item}` answered but {said}; {guard_text(q, g)}"
-    if g.kind == "own" and g.entry is not None and g.entry.index in q.broken:
+    if g.kind == "own" and isinstance(g.entry, Entry) and g.entry.index in q.broken:
         message += " (this condition has a spec problem; see `logiccheck lint`)"
     return message

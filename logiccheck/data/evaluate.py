@@ -176,13 +176,13 @@ class Compiler:
 
             return arith
         if isinstance(expr, n.Compare):
-            left, right, op = self.compile(expr.left), self.compile(expr.right), expr.op
+            left, right, rel = self.compile(expr.left), self.compile(expr.right), expr.op
 
             def compare(env: Env) -> TV:
                 a, b = left(env), right(env)
                 if not isinstance(a, NumV) or not isinstance(b, NumV):
                     return env.unknown()
-                if op in ("=", "!="):
+                if rel in ("=", "!="):
                     x, y = a.raw, b.raw
                 else:
                     x, y = a.num, b.num
@@ -196,7 +196,7 @@ class Compiler:
                         "<=": lambda: np.less(x, y) | eq,
                         ">": lambda: np.greater(x, y) & ~eq,
                         ">=": lambda: np.greater(x, y) | eq,
-                    }[op]()
+                    }[rel]()
                 return TV(known & res, known & ~res)
 
             return compare
@@ -346,7 +346,7 @@ class Guard:
     """One reason an entry may not be reached: a stop, a skip, a context or own condition."""
 
     kind: str  # stop | skip | context | own
-    entry: Entry | None  # the stop or skip, or the owner (section/grid) for context
+    entry: Entry | n.Section | n.Grid  # the stop, skip or item; the owning section/grid for context
     expr: Any  # the condition
     reads: list[tuple[str, str]]  # (fact kind, name) the message reports
 
@@ -458,9 +458,8 @@ class Evaluator:
                 state.lets[e.name] = out
                 continue
             if e.kind == "sample":
-                if supply is not None:
-                    cells[e.name] = supply(e, np.ones(rows, dtype=bool))
-                self._set_value(env, e, cells.get(e.name), np.ones(rows, dtype=bool))
+                got = supply(e, np.ones(rows, dtype=bool)) if supply is not None else cells.get(e.name)
+                self._set_value(env, e, got, np.ones(rows, dtype=bool))
                 continue
             alive = (stop_at < 0) & (skip_until <= e.index)
             ctx = [fn(env) for _, fn in self.context[e.index]]
@@ -480,9 +479,7 @@ class Evaluator:
                 fails = cond & req(env).f if req is not None else np.zeros(rows, dtype=bool)
                 state.check_fails[e.name] = fails
             elif e.kind == "item":
-                if supply is not None:
-                    cells[e.name] = supply(e, cond)
-                c = cells.get(e.name)
+                c = supply(e, cond) if supply is not None else cells.get(e.name)
                 env.due[e.name] = cond
                 env.asked[e.name] = cond
                 if c is not None:
@@ -528,6 +525,7 @@ class Evaluator:
         todo = np.ones(len(rows), dtype=bool)
         for gi, g in enumerate(guards):
             if g.kind == "stop":
+                assert isinstance(g.entry, Entry)  # a stop's guard holds the stop's entry
                 hit = stop_at[rows] == g.entry.index
             elif g.kind == "skip":
                 # A skip spanning this entry fired when the running limit passed it.
@@ -561,8 +559,10 @@ class Evaluator:
             return np.where(tv.t[rows], 1.0, np.where(tv.f[rows], 0.0, UNKNOWN))
         entry = self.q.symbols.get(name)
         if entry is not None and entry.kind == "let":
-            v = env.values.get(name)
-            return np.where(np.isnan(v.raw[rows]), UNKNOWN, v.raw[rows]) if v is not None else np.full(len(rows), UNKNOWN)
+            value = env.values.get(name)
+            if value is None:
+                return np.full(len(rows), UNKNOWN)
+            return np.where(np.isnan(value.raw[rows]), UNKNOWN, value.raw[rows])
         due = env.due.get(name)
         present = env.present.get(name)
         valid = env.valid.get(name)

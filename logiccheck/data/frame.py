@@ -188,7 +188,7 @@ def dictionary_chunks(arr: pa.Array | pa.ChunkedArray) -> Iterator[tuple[pa.Arra
 
 def distinct(arr: pa.Array | pa.ChunkedArray) -> Distinct:
     dictionaries: list[pa.Array] = []
-    parts: list[np.ndarray] = []
+    parts: list[tuple[pa.Array, int]] = []  # (dictionary indices, offset of its dictionary)
     base = 0
     for dictionary, indices in dictionary_chunks(arr):
         dictionaries.append(dictionary)
@@ -531,9 +531,9 @@ def _gather(
         local = _index_part(indices, 0, len(pos))
         np.take(np.append(v.state[pos], np.uint8(0)), local, out=state[start:stop])
         np.take(np.append(v.value[pos], np.nan), local, out=value[start:stop])
-        if not_shown is not None:
+        if not_shown is not None and v.not_shown is not None:
             np.take(np.append(v.not_shown[pos], False), local, out=not_shown[start:stop])
-        if unanswered is not None:
+        if unanswered is not None and v.unanswered is not None:
             np.take(np.append(v.unanswered[pos], False), local, out=unanswered[start:stop])
         start = stop
     return v, state, value, not_shown, unanswered
@@ -544,10 +544,13 @@ def judge(
 ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """(reason, valid, value, nr) for a single, number or decimal item's cells (or for the
     distinct texts of its column)."""
+    # A plan without non-response values matches none (as `np.isin` does with None).
+    nonresponse = plan.nonresponse if plan.nonresponse is not None else np.empty(0)
+    global_nr = plan.global_nr if plan.global_nr is not None else np.empty(0)
     reason = np.zeros(len(present), dtype=np.int8)
     reason[present & ~parsed] = NOT_A_NUMBER
     num = present & parsed
-    is_nr = num & np.isin(value, plan.nonresponse)
+    is_nr = num & np.isin(value, nonresponse)
     if plan.allowed is not None:
         bad = num & ~is_nr & ~np.isin(value, plan.allowed)
         reason[bad & (reason == OK)] = NOT_A_CODE
@@ -561,7 +564,7 @@ def judge(
         reason[out] = OUT_OF_RANGE
     if plan.entry.kind == "item" and plan.entry.stmt.flags.strict:
         # A non-response code on a strict item: name it as such rather than "not a code".
-        strict_nr = num & (reason != OK) & np.isin(value, plan.global_nr)
+        strict_nr = num & (reason != OK) & np.isin(value, global_nr)
         reason[strict_nr] = NONRESPONSE_STRICT
     valid = present & (reason == OK)
     return reason, valid, np.where(num, value, np.nan), is_nr & valid
@@ -612,15 +615,18 @@ def _multi_cells(plan: NamePlan, table: pa.Table, mapping: DataMapping, blank: s
                     v = float(label)
                 else:
                     strict = strict_number(token)
-                    if strict is None and label is None:
+                    if strict is not None:
+                        v = strict
+                    elif label is not None:
+                        v = float(label)
+                    else:
                         d_bad[i] = True
                         continue
-                    v = strict if strict is not None else float(label)  # type: ignore[arg-type]
-                j = position.get(int(v)) if v.is_integer() else None
-                if j is None:
+                slot = position.get(int(v)) if v.is_integer() else None
+                if slot is None:
                     d_bad[i] = True
                 else:
-                    d_chosen[i, j] = True
+                    d_chosen[i, slot] = True
         chosen = d_chosen[d.index]
         bad = d_bad[d.index]
     present = chosen.any(axis=1) | bad

@@ -112,7 +112,7 @@ class _Drawer:
             return Cells(plan, present, present.copy(), reason, chosen=chosen)
         if plan.kind == "text":
             words = self.texts[rng.integers(0, len(self.texts), size=n)]
-            self.out[plan.columns[0]] = np.where(present, words, None)
+            self.out[plan.columns[0]] = np.where(present, words, np.array(None, dtype=object))
             return Cells(plan, present, present.copy(), reason)
         value = np.where(present, self.values(plan, n), np.nan)
         nr = np.zeros(n, dtype=bool)
@@ -309,7 +309,7 @@ def write_csv(table: pa.Table, path: str | Path) -> None:
 
 
 def write_faults(faults: list[tuple[int, str, str, str]], path: str | Path) -> None:
-    rows = list(zip(*faults, strict=True)) if faults else [[], [], [], []]
+    rows: list[tuple[object, ...]] = list(zip(*faults, strict=True)) if faults else [(), (), (), ()]
     table = pa.table(
         {
             "row": pa.array(rows[0], pa.int64()),

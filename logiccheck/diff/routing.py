@@ -327,7 +327,11 @@ class CrossVersion:
         old_vals, new_vals = _valued(self.q_old), _valued(self.q_new)
         order = {name: i for i, name in enumerate([e.name for e in self.q_new.entries])}
         out: dict[str, str] = {}
-        for key in sorted(old_names, key=lambda k: order.get(self.old_to_new.get(k, k), -1)):
+
+        def rank(old_name: str) -> int:
+            return order.get(self.old_to_new.get(old_name, old_name), -1)
+
+        for key in sorted(old_names, key=rank):
             new_name = self.old_to_new.get(key, key)
             oe, ne = old_vals.get(key), new_vals.get(new_name)
             sides = []
@@ -335,7 +339,7 @@ class CrossVersion:
                 sides.append(("old", oe, key))
             if ne is not None:
                 sides.append(("new", ne, new_name))
-            if len(sides) == 2 and oe.stmt.type.kind != ne.stmt.type.kind:
+            if oe is not None and ne is not None and oe.stmt.type.kind != ne.stmt.type.kind:
                 for which, entry, name in sides:
                     shown = self._answer(model, which, entry, name, key)
                     if shown is not None:

@@ -36,12 +36,14 @@ def route(inferred: Inferred, *, seed: int = 0, progress: Progress | None = None
         later[:, :-1] = np.logical_or.accumulate(present[:, ::-1], axis=1)[:, ::-1][:, 1:]
     alive = np.ones(n, dtype=bool)
     sample = sample_rows(n, seed)
+    small = [c.var.subset(sample) for c in cols] if sample is not None else None
     out: list[Routed] = []
     for i, c in enumerate(cols):
         if progress is not None:
             progress(i, len(cols))
         answered = c.var.present
-        got = mine([p.var for p in cols[:i]], answered, alive, sample=sample)
+        got = mine([p.var for p in cols[:i]], answered, alive, sample=sample,
+                   sampled=small[:i] if small is not None else None)
         r = Routed(c, got.condition, got.share)
         if i + 1 < len(cols):
             lit = stop_literal(c.var, ~later[:, i], alive)

@@ -348,14 +348,17 @@ def explained(cond: Condition, vars_: dict[str, Var], answered: np.ndarray, aliv
 
 def mine(
     earlier: Sequence[Var], answered: np.ndarray, alive: np.ndarray, *, seed: int = 0,
-    sample: np.ndarray | None = None,
+    sample: np.ndarray | None = None, sampled: Sequence[Var] | None = None,
 ) -> Mined:
-    """Search on a sample of rows (all of them when few), score on every row."""
+    """Search on a sample of rows (all of them when few), score on every row.
+    `sampled`: `earlier` already cut to `sample` (callers mining many columns cut each
+    column once, so its code index is built once, not once per later column)."""
     n = len(answered)
     if sample is None:
         sample = sample_rows(n, seed)
     if sample is not None:
-        cond = search([v.subset(sample) for v in earlier], answered[sample], alive[sample])
+        small = sampled if sampled is not None else [v.subset(sample) for v in earlier]
+        cond = search(small, answered[sample], alive[sample])
     else:
         cond = search(earlier, answered, alive)
     vars_ = {v.name: v for v in earlier}

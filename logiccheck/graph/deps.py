@@ -20,7 +20,7 @@ class Read:
     name: str
     span: Span
     via: str  # "context" | "condition" | "let" | "pipe" | "check"
-    owner: object = None  # the section/grid whose condition reads it, for "context"
+    owner: n.Section | n.Grid | None = None  # the section/grid whose condition reads it, for "context"
 
 
 def _names(expr: object) -> list[tuple[str, Span]]:

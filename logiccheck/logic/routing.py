@@ -37,6 +37,14 @@ class Statement:
     entry: Entry | None
     effect: str  # "true": a condition that routes; "value": a derived value
 
+    @property
+    def root(self) -> str:
+        """The subject questions about this statement start from: its section or grid
+        (`block:NAME`, the only statements without an entry), else its entry."""
+        if self.key.startswith("block:") or self.entry is None:
+            return self.key
+        return f"entry:{self.entry.index}"
+
 
 @dataclass
 class RoutingFacts:
@@ -193,7 +201,7 @@ class RoutingAnalysis:
                 ask.roots = [f"block:{name}"]
                 ask[("block", name)] = enc.block_reached(name)
         for st in self.statements:
-            ask.roots = [st.key if st.key.startswith("block:") else f"entry:{st.entry.index}"]  # type: ignore[union-attr]
+            ask.roots = [st.root]
             if st.key.startswith("block:"):
                 ask[("st-reach", st.key)] = st.reach
             try:
@@ -293,7 +301,7 @@ class RoutingAnalysis:
         parts: dict[int, dict[Hashable, z3.BoolRef]] = {}
         part_roots: dict[int, set[str]] = {}
         for key, formula in self.questions.items():
-            if only is not None and key[0] not in only:
+            if only is not None and _kind_of(key) not in only:
                 continue
             roots = [r for r in self.roots[key] if r in part_of]
             k = part_of[roots[0]] if roots else -1
@@ -304,18 +312,18 @@ class RoutingAnalysis:
         # in all of them, which saves more calls than the larger solver costs.
         groups: list[tuple[dict[Hashable, z3.BoolRef], set[str] | None]] = []
         current: dict[Hashable, z3.BoolRef] = {}
-        roots: set[str] = set()
+        group_roots: set[str] = set()
         for k in sorted(parts, key=lambda k: (k < 0, k)):
             if k < 0:
                 groups.append((parts[k], None))
                 continue
             current.update(parts[k])
-            roots |= part_roots[k]
+            group_roots |= part_roots[k]
             if len(current) >= GROUP_QUESTIONS:
-                groups.append((current, roots))
-                current, roots = {}, set()
+                groups.append((current, group_roots))
+                current, group_roots = {}, set()
         if current:
-            groups.append((current, roots))
+            groups.append((current, group_roots))
         total = Cover()
         outer = Outer(self.queries)
         with uncompacted_models():
@@ -330,7 +338,7 @@ class RoutingAnalysis:
         edges; their constraints grow with the questionnaire (every earlier stop and
         what decides it), so the group is first solved without them and each model
         joined with one of theirs (see `_split`)."""
-        first = lambda key: key[0] in ("asked", "reached", "block")  # noqa: E731
+        first = lambda key: _kind_of(key) in ("asked", "reached", "block")  # noqa: E731
         if roots is None:
             return self.queries.cover(questions, None, first=first)
         try:
@@ -505,6 +513,11 @@ class RoutingAnalysis:
                    if isinstance(node, (n.Ref, n.Func)) and node.name in self.q.symbols]
             self._names_cache[id(expr)] = hit
         return hit
+
+
+def _kind_of(key: Hashable) -> Hashable:
+    """The kind of a question: the first part of its key (every key is a tuple)."""
+    return key[0] if isinstance(key, tuple) else key
 
 
 def _xor(a: z3.BoolRef, b: z3.BoolRef) -> z3.BoolRef:

@@ -6,7 +6,7 @@ validating some 50,000 nodes of a large spec again costs about half a second.
 
 from __future__ import annotations
 
-from typing import Any
+from typing import Any, cast
 
 from lark import Token, Tree
 
@@ -25,6 +25,14 @@ _ALLOWED = {
     "stop": {"when"},
     "check": {"when", "require", "soft"},
 }
+
+
+def _token(node: Token | Tree) -> Token:
+    """A parse-tree child that the grammar always makes a token (a name, string or number).
+
+    Lark types every child as token-or-tree; the grammar decides which, so this only
+    tells the type checker what the grammar guarantees."""
+    return cast(Token, node)
 
 
 def _unquote(raw: str) -> str:
@@ -55,7 +63,8 @@ class Builder:
             end_column=meta.end_column,
         )
 
-    def span_tok(self, tok: Token) -> Span:
+    def span_tok(self, node: Token | Tree) -> Span:
+        tok = _token(node)
         return n.construct(Span,
             file=self.file,
             line=tok.line or 1,
@@ -125,7 +134,7 @@ class Builder:
 
     def signed_num(self, tree: Tree) -> float:
         minus, number = tree.children
-        value = float(number)
+        value = float(_token(number))
         return -value if minus is not None else value
 
     # -- types
@@ -168,11 +177,12 @@ class Builder:
                 flat.extend(c for c in child.children if isinstance(c, Tree))
             elif isinstance(child, Tree) and child.data.startswith("opt_"):
                 flat.append(child)
+        value: object  # True for a flag, seconds, or an expression node
         for opt in flat:
             if opt.data == "opt_flag":
                 word, value = str(opt.children[0]), True
             elif opt.data == "opt_seconds":
-                word, value = "seconds", float(opt.children[0])
+                word, value = "seconds", float(_token(opt.children[0]))
             else:
                 word, value = opt.data[4:], self.expr(opt.children[0])
             if word not in _ALLOWED[stmt]:
@@ -331,7 +341,7 @@ class Builder:
                 shown = "min" if word == "min" else "score top"
                 self.error(span, f"`{shown}` is given twice on this `scale`")
                 continue
-            value = float(number)
+            value = float(_token(number))
             if not value.is_integer() or value < 1:
                 shown = "min" if word == "min" else "score top"
                 self.error(self.span_tok(number), f"`{shown}` takes a whole number of 1 or more, not {number}")

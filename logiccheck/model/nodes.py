@@ -142,7 +142,7 @@ for _cls in (Neg, Arith, Compare, InList, InRange, Has, Not, And, Or):
     _cls.model_rebuild()
 
 
-def children(expr: BaseModel) -> list[BaseModel]:
+def children(expr: BaseModel) -> list[Node]:
     """Direct sub-expressions, in reading order."""
     if isinstance(expr, (Neg, Not)):
         return [expr.operand]

@@ -10,6 +10,7 @@ from logiccheck.model import nodes as n
 
 # What a name stands for, as conditions see it.
 ValueKind = Literal["coded", "set", "number", "text", "note", "bool", "unknown"]
+RefRole = Literal["condition", "context", "pipe", "let", "check", "skip-target"]
 
 
 @dataclass
@@ -70,7 +71,7 @@ class Reference:
     entry: int  # index of the reading entry
     name: str
     span: Span
-    role: Literal["condition", "context", "pipe", "let", "check", "skip-target"]
+    role: RefRole
 
 
 @dataclass
@@ -138,14 +139,15 @@ class Questionnaire:
         if entry.kind == "let":
             return self.let_kinds.get(name, "unknown")
         kind = entry.stmt.type.kind
-        return {
+        kinds: dict[str, ValueKind] = {
             "single": "coded",
             "multi": "set",
             "number": "number",
             "decimal": "number",
             "text": "text",
             "note": "note",
-        }[kind]
+        }
+        return kinds[kind]
 
     def guards(self, entry: Entry) -> tuple[list[Entry], list[Entry]]:
         """The stops before `entry`, and the skips whose span covers it."""

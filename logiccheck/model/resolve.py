@@ -7,7 +7,7 @@ from typing import Any
 
 from logiccheck.diagnostics import Span
 from logiccheck.model import nodes as n
-from logiccheck.model.questionnaire import Entry, Problem, Questionnaire, Reference, ValueKind
+from logiccheck.model.questionnaire import Entry, Problem, Questionnaire, Reference, RefRole, ValueKind
 
 PIPE = re.compile(r"\{([a-z_][a-z0-9_]*)\}")
 BOOLEAN_NODES = (n.Compare, n.InList, n.InRange, n.Has, n.Not, n.And, n.Or)
@@ -131,7 +131,10 @@ class Resolver:
                 )
             )
             return
-        (q.sections if isinstance(block, n.Section) else q.grids)[block.name] = block
+        if isinstance(block, n.Section):
+            q.sections[block.name] = block
+        else:
+            q.grids[block.name] = block
 
     def add(self, stmt: Any, section: n.Section | None, grid: n.Grid | None, context: list[tuple[Any, Any]]) -> Entry:
         entry = Entry(index=len(self.q.entries), stmt=stmt, section=section, grid=grid, context=list(context))
@@ -222,7 +225,7 @@ class Resolver:
                 if name not in self.q.symbols:
                     self.unknown(name, pspan, entry)
 
-    def boolean(self, expr: Any, entry: Entry, role: str) -> Any:
+    def boolean(self, expr: Any, entry: Entry, role: RefRole) -> Any:
         kind = self.kind_of_expr(expr, entry, role)
         if kind not in ("bool", "unknown"):
             self.type_problem(expr.span, f"a condition must be true or false, but this is a {_kind_word(kind)}", entry)
@@ -282,7 +285,7 @@ class Resolver:
             return "bool"
         return "unknown"
 
-    def resolve(self, expr: Any, entry: Entry, role: str) -> Any:
+    def resolve(self, expr: Any, entry: Entry, role: RefRole) -> Any:
         """A copy of `expr` with code labels turned into Code nodes; records problems."""
         q = self.q
         if isinstance(expr, n.Ref):
@@ -336,15 +339,15 @@ class Resolver:
                 isinstance(side, n.Ref) and side.name not in q.symbols and not self.is_any_label(side.name)
                 for side in (expr.left, expr.right)
             )
-            update = {}
+            sides: dict[str, Any] = {}
             for key, side in (("left", expr.left), ("right", expr.right)):
                 if isinstance(side, n.Ref) and side.name not in q.symbols:
                     # A label beside a name that is not coded was judged above; beside
                     # an unknown name it is most likely that item's label.
                     if self.is_any_label(side.name) or (unknown_side and self.is_constant_like(expr, side)):
                         continue
-                update[key] = self.resolve(side, entry, role)
-            return expr.model_copy(update=update)
+                sides[key] = self.resolve(side, entry, role)
+            return expr.model_copy(update=sides)
         if isinstance(expr, n.InList):
             coded = self.coded_subject(expr.subject)
             subject = self.resolve(expr.subject, entry, role)
@@ -390,9 +393,9 @@ class Resolver:
             update["operands"] = [self.resolve(o, entry, role) for o in expr.operands]
         return expr.model_copy(update=update) if update else expr
 
-    def reference(self, name: str, span: Span, entry: Entry, role: str) -> None:
+    def reference(self, name: str, span: Span, entry: Entry, role: RefRole) -> None:
         q = self.q
-        q.references.append(Reference(entry.index, name, span, role))  # type: ignore[arg-type]
+        q.references.append(Reference(entry.index, name, span, role))
         if name not in q.symbols:
             if name in q.sections or name in q.grids:
                 self.type_problem(span, f"`{name}` is a section or grid, not a value; name one of its items", entry)

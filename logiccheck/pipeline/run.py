@@ -5,6 +5,7 @@ from __future__ import annotations
 import dataclasses
 import sys
 import tempfile
+import time
 from collections.abc import Callable, Iterator
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -95,6 +96,8 @@ class PipelineResult(ValidationResult):
     match: Any = None  # near-duplicate scores, where computed
     sample_frame: pd.DataFrame | None = None
     analyses: dict[str, Analysis] = field(default_factory=dict)
+    # Seconds (wall) per stage, check and analysis, in the order they ran (`--timings`).
+    timings: dict[str, float] = field(default_factory=dict)
     context: DataContext | None = None  # what the checks read; `clean` re-runs the weights on it
 
     def cells(self) -> pd.DataFrame:
@@ -258,13 +261,17 @@ def _run(
         if used_delimiter not in (None, ",") and fmt not in ("tsv", "tab"):
             how = "as given" if delimiter else "detected from the header line; set --delimiter to override"
             notes.append(f"{export.path.name}: read as {DELIMITER_NAMES[used_delimiter]}-delimited ({how})")
+    started = time.perf_counter()
     validator = Validator(q, mapping, header, keep_cells=True, keep_frame=False)
     base = validator.run(_kept(chunks, kept), name, opts.progress)
+    read_and_route = time.perf_counter() - started
     raw = _joined(kept, header)
     result = PipelineResult(**{f.name: getattr(base, f.name) for f in dataclasses.fields(ValidationResult)})
     result.notes = [*notes, *result.notes]
     result.config, result.mapping, result.quality_config = config, mapping, quality
     result.export, result.export_format, result.delimiter, result.layout = raw, fmt, used_delimiter, validator.layout
+    result.timings["read and route"] = read_and_route
+    started = time.perf_counter()
     state = state_from_validation(q, result)
     result.state = state
     # Dispositions before the checks: the quality checks judge respondents by them.
@@ -277,15 +284,17 @@ def _run(
         result.sample_frame = read_cells(mapping.frame)
     ctx = _context(q, result, raw, config, mapping, quality, validator)
     result.context = ctx
+    result.timings["route state, dispositions, context"] = time.perf_counter() - started
     if opts.margins is not None:
         ctx.options["margins"] = opts.margins
     # A check turned off in [checks] is not run at all (some cost real time on large exports).
-    result.blocks.extend(run_data_checks(ctx, disable=config.disabled if opts.check_settings else ()))
+    result.blocks.extend(run_data_checks(ctx, disable=config.disabled if opts.check_settings else (),
+                                         timings=result.timings))
     # Who each near-duplicate matched, for the cleaner's keep-the-first rule.
     near = ctx.memo.get("quality.near")
     if near is not None:
         result.match = MatchScores(near.score, near.partner, near.compared)
-    result.analyses = run_analyses(ctx)
+    result.analyses = run_analyses(ctx, result.timings)
     result.notes.extend(ctx.notes)
     for analysis in result.analyses.values():
         result.notes.extend(analysis.notes)

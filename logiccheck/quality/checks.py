@@ -26,7 +26,15 @@ from logiccheck.quality.careless import (
 )
 from logiccheck.quality.config import QualityConfig
 from logiccheck.quality.duplicates import group_messages, id_groups
-from logiccheck.quality.nearmatch import best_partners, column_labels, exact_groups, near_pairs
+from logiccheck.quality.nearmatch import (
+    Coverage,
+    Pairs,
+    best_partners,
+    column_labels,
+    compare_pairs,
+    exact_groups,
+    near_pairs,
+)
 
 # Dispositions whose interview length is compared; screen-outs and break-offs end early
 # because the routing (or the respondent) ended them, so they are never speeders.
@@ -118,8 +126,10 @@ def duplicate_response(ctx: DataContext) -> Iterator[Hits]:
     "without comparing all pairs: items are split into blocks of at most 2 / (1 - threshold) items (13 at "
     "85 %), and a pair above the threshold must, in some block, agree on all but at most one of the items "
     "both answered (a pigeonhole argument, as in multi-index hashing: Norouzi, Punjani & Fleet 2014), so "
-    "only pairs that meet in some block are compared. Respondents reported as `duplicate-response` are "
-    "left to that check.",
+    "only pairs that meet in some block are compared. The search spends at most `near_search_budget` "
+    "candidate pairs per respondent (default 10; 0 = no limit); answers with little spread can need more, and "
+    "the run then says in a note which blocks were left out and estimates the maximum percent match on 10 "
+    "respondents drawn at random. Respondents reported as `duplicate-response` are left to that check.",
     why="Near-copies point at interviews fabricated by editing a real one.",
     bad="two respondents agreeing on 18 of the 20 items both answered (90 %)",
     good="two respondents agreeing on 7 of the 20 items both answered (35 %), as chance gives on five-point items",
@@ -129,8 +139,14 @@ def near_duplicate(ctx: DataContext) -> Iterator[Hits]:
     answers = answer_codes(ctx)
     # Items asked of the same respondents are blocked together (speed only).
     groups = column_labels(ctx.due[:, [ctx.col(name) for name in answers.items]])
-    best = best_partners(near_pairs(answers.codes, dc.near_threshold, dc.near_min_items, groups), ctx.n)
+    budget = dc.near_search_budget * ctx.n if dc.near_search_budget else None
+    coverage = Coverage(budget=budget)
+    pairs = near_pairs(answers.codes, dc.near_threshold, dc.near_min_items, groups, coverage)
+    if not coverage.complete:
+        pairs = _with_sample(ctx, answers.codes, pairs, coverage)
+    best = best_partners(pairs, ctx.n)
     ctx.memo["quality.near"] = best
+    ctx.memo["quality.near_coverage"] = coverage
     flagged = best.partner >= 0
     for group in _exact(ctx):
         flagged[group] = False
@@ -144,6 +160,64 @@ def near_duplicate(ctx: DataContext) -> Iterator[Hits]:
         for r in rows.tolist()
     ]
     yield Hits(rows=rows, message=messages, values=[f"{best.score[r]:.4f}" for r in rows.tolist()])
+
+
+# Respondents whose maximum percent match is computed directly, against everyone, when
+# the exact search did not finish within its budget (the estimate is said to be one).
+NEAR_SAMPLE = 10
+
+
+def _with_sample(ctx: DataContext, codes: np.ndarray, pairs: Pairs, coverage: Coverage) -> Pairs:
+    """Add a sample estimate to an incomplete search: NEAR_SAMPLE respondents compared
+    with everyone (exactly), their pairs above the threshold added to `pairs`, and a note
+    saying what was not searched and what the sample shows."""
+    dc = _config(ctx).duplicates
+    eligible = np.flatnonzero((codes != 0).sum(axis=1) >= dc.near_min_items)
+    rng = np.random.default_rng(0)  # a fixed seed: the same export gives the same note
+    sample = np.sort(rng.choice(eligible, size=min(NEAR_SAMPLE, eligible.size), replace=False))
+    best_scores: list[float] = []
+    extra: list[tuple[np.ndarray, ...]] = []
+    for r in sample.tolist():
+        others = eligible[eligible != r]
+        compared, matched = compare_pairs(codes, np.full(others.size, r), others)
+        ok = compared >= dc.near_min_items
+        if not ok.any():
+            continue
+        score = matched / np.maximum(compared, 1)
+        best_scores.append(float(score[ok].max()))
+        above = ok & (score > dc.near_threshold)
+        if above.any():
+            o = others[above]
+            extra.append((np.minimum(o, r), np.maximum(o, r), compared[above], matched[above]))
+    if extra:
+        parts = [(pairs.a, pairs.b, pairs.compared, pairs.matched), *extra]
+        a, b, c, m = (np.concatenate(column) for column in zip(*parts, strict=True))
+        key = a * ctx.n + b
+        _, first = np.unique(key, return_index=True)
+        pairs = Pairs(a[first], b[first], c[first], m[first])
+    ctx.notes.append(_coverage_note(ctx, coverage, sample.size, best_scores))
+    return pairs
+
+
+def _coverage_note(ctx: DataContext, coverage: Coverage, sampled: int, scores: list[float]) -> str:
+    dc = _config(ctx).duplicates
+    items = answer_codes(ctx).items
+    cols = sorted({int(c) for part in coverage.skipped for c in part.tolist()})
+    shown = ", ".join(items[c] for c in cols[:5]) + (f" and {len(cols) - 5} more" if len(cols) > 5 else "")
+    share = f"{100 * dc.near_threshold:g} %"
+    if scores:
+        arr = np.array(scores)
+        above = int((arr > dc.near_threshold).sum())
+        estimate = (f"maximum percent match of {len(scores)} respondents drawn at random, each compared with "
+                    f"everyone: median {100 * float(np.median(arr)):.0f} %, highest {100 * float(arr.max()):.0f} % "
+                    f"({above} above {share}; those are reported)")
+    else:
+        estimate = f"none of the {sampled} respondents drawn at random shares {dc.near_min_items} answered items with anyone"
+    return (f"near-duplicate: the exact search stopped at its budget of {dc.near_search_budget} candidate pairs per "
+            f"respondent ([quality.duplicates] near_search_budget; 0 searches everything): {len(coverage.skipped)} "
+            f"block(s) of items were not fully searched ({shown}), where chance agreement alone would make at least "
+            f"{coverage.skipped_pairs:,} candidate pairs (answers with little spread, or many different answered "
+            f"patterns). Pairs above {share} that agree closely only there may be missed. Estimate: {estimate}.")
 
 
 def _grid(ctx: DataContext, grid: str) -> tuple[np.ndarray, GridFlags]:

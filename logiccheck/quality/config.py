@@ -24,8 +24,8 @@ class CompletenessConfig(_Strict):
     complete_rule: str | None = None
     # true = partial (checked only when not complete); otherwise break-off.
     partial_rule: str | None = None
-    complete_above: float = Field(0.80, ge=0, le=1)  # AAPOR Standard Definitions example (from memory)
-    partial_from: float = Field(0.50, ge=0, le=1)  # AAPOR Standard Definitions example (from memory)
+    complete_above: float = Field(default=0.80, ge=0, le=1)  # AAPOR Standard Definitions example (from memory)
+    partial_from: float = Field(default=0.50, ge=0, le=1)  # AAPOR Standard Definitions example (from memory)
     nonresponse_counts_as_answered: bool = True
     weights: dict[str, float] = Field(default_factory=dict)  # item -> importance (default 1)
 
@@ -36,41 +36,46 @@ class DuplicateConfig(_Strict):
     compared); `near-duplicate` finds every pair above the threshold exactly, at any size."""
 
     # Kuriakose & Robbins (2016): a maximum percent match above 85 % is unlikely by chance.
-    near_threshold: float = Field(0.85, ge=0, le=1)
+    near_threshold: float = Field(default=0.85, ge=0, le=1)
     # Pairs compared on fewer items both answered than this are not scored, so a
     # respondent with fewer answers is never a near-duplicate (common practice, no source).
-    near_min_items: int = Field(10, ge=1)
+    near_min_items: int = Field(default=10, ge=1)
     # Exact copies count only among respondents with at least this many answers: short
     # routes coincide by chance (common practice, no source).
-    exact_min_answered: int = Field(10, ge=1)
+    exact_min_answered: int = Field(default=10, ge=1)
+    # Candidate pairs per respondent the exact near-duplicate search may compare (about
+    # 0.5 µs each on 300 items); parts of the search beyond it are skipped, said in a
+    # note, and the maximum percent match is then estimated on a sample. 0 = no limit.
+    # Measured on this project's benchmarks, no outside source.
+    near_search_budget: int = Field(default=10, ge=0)
     # The four settings below are read only by the older `quality.run.run_quality` path
     # (pairs over the items asked of either respondent, with a size budget); the
     # `near-duplicate` check ignores them. They go when that path is retired.
     near_basis: Literal["asked", "all"] = "asked"
-    chunk_size: int = Field(2000, ge=1)
-    near_max_respondents: int = Field(50_000, ge=2)
-    near_max_work: float = Field(1.5e12, gt=0)
+    chunk_size: int = Field(default=2000, ge=1)
+    near_max_respondents: int = Field(default=50_000, ge=2)
+    near_max_work: float = Field(default=1.5e12, gt=0)
 
 
 class CarelessConfig(_Strict):
     # A grid is checked only with at least this many answered rows (common practice, no source).
-    min_rows: int = Field(4, ge=2)
+    min_rows: int = Field(default=4, ge=2)
     # Within-grid standard deviation at or below this counts as straight-lining
     # (0 = all the same; common practice, no source).
-    straightline_sd: float = Field(0.0, ge=0)
+    straightline_sd: float = Field(default=0.0, ge=0)
     # Longest run of identical answers, as a share of the grid's answered rows, at or
     # above which a grid is flagged (common practice, no source).
-    longest_run_share: float = Field(1.0, gt=0, le=1)
+    longest_run_share: float = Field(default=1.0, gt=0, le=1)
     # A repeating cycle (1-2-1-2, 1-2-3-4-1-2-3-4) must cover at least this many rows
     # and repeat at least twice (common practice, no source).
-    pattern_min_length: int = Field(6, ge=4)
-    pattern_max_period: int = Field(5, ge=2)
+    pattern_min_length: int = Field(default=6, ge=4)
+    pattern_max_period: int = Field(default=5, ge=2)
 
 
 class SpeedConfig(_Strict):
     # Faster than this fraction of the median seconds per item asked (among completes and
     # partials; screen-outs and break-offs are never speeders): common practice, no source.
-    fraction_of_median: float = Field(1 / 3, gt=0, lt=1)
+    fraction_of_median: float = Field(default=1 / 3, gt=0, lt=1)
     duration_column: str = "duration"
 
 
@@ -81,7 +86,7 @@ class FrameConfig(_Strict):
 
 class RepairConfig(_Strict):
     weights: dict[str, float] = Field(default_factory=dict)  # item -> cost of changing it (default 1)
-    timeout_ms: int = Field(10_000, ge=100)
+    timeout_ms: int = Field(default=10_000, ge=100)
 
 
 class QualityConfig(_Strict):
@@ -112,6 +117,7 @@ SOURCES: dict[str, str] = {
     "duplicates.near_min_items": "common practice, no source",
     "duplicates.near_max_work": "older run_quality path only: a budget measured on this project's benchmark",
     "duplicates.exact_min_answered": "common practice, no source",
+    "duplicates.near_search_budget": "measured on this project's benchmarks, no outside source",
     "careless.pattern_max_period": "common practice, no source",
     "completeness.nonresponse_counts_as_answered": "the issue's default: a non-response code is an answer",
     "careless.min_rows": "common practice, no source",

@@ -30,9 +30,10 @@ hashing", 2014), adapted to blanks:
 Work grows with the candidates, not with the square of the respondents: on answers
 with some spread (five-point items) twelve codes of a block are shared by chance
 rarely. Blocks are formed from items the routing asks of the same respondents, so
-patterns inside a block are mostly all-or-nothing; many scattered blanks make many
-patterns and slow the joins down (the result stays exact). Answers with little spread
-(yes/no items only) make many chance candidates: also slower, still exact.
+patterns inside a block are mostly all-or-nothing. Many scattered blanks make many
+patterns (many joins), and answers with little spread (yes/no items) make many chance
+candidates; a `Coverage` budget bounds that work: parts beyond it are skipped and
+recorded, and every pair returned is still exact.
 """
 
 from __future__ import annotations
@@ -40,7 +41,7 @@ from __future__ import annotations
 import functools
 import math
 from collections.abc import Iterator
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -147,10 +148,12 @@ def _big_run(members: np.ndarray) -> Iterator[tuple[np.ndarray, np.ndarray]]:
 
 
 def _pairs_across(
-    keys_p: np.ndarray, rows_p: np.ndarray, keys_q: np.ndarray, rows_q: np.ndarray
+    keys_p: np.ndarray, rows_p: np.ndarray, keys_q: np.ndarray, rows_q: np.ndarray,
+    cov: Coverage | None = None, cols: np.ndarray | None = None,
 ) -> Iterator[tuple[np.ndarray, np.ndarray]]:
     """Every (p, q) with equal keys, p from one set and q from the other, in batches of
-    whole keys (all keys of a batch at once)."""
+    whole keys (all keys of a batch at once); nothing if their number exceeds what is
+    left of the budget (recorded as skipped)."""
     op, oq = np.argsort(keys_p), np.argsort(keys_q)
     kp, kq = keys_p[op], keys_q[oq]
     at = np.minimum(np.searchsorted(kp, kq), kp.size - 1)
@@ -162,6 +165,10 @@ def _pairs_across(
     lo_q, cq = np.searchsorted(kq, common, "left"), np.searchsorted(kq, common, "right")
     cp, cq = cp - lo_p, cq - lo_q
     total = np.cumsum(cp * cq)
+    if cov is not None and not cov.allows(int(total[-1])):
+        if cols is not None:
+            cov.skip(cols)
+        return
     i = 0
     while i < common.size:
         j = max(i + 1, int(np.searchsorted(total, (total[i - 1] if i else 0) + PAIR_BATCH, side="right")))
@@ -200,8 +207,9 @@ def blocks_for(codes: np.ndarray, size: int, groups: np.ndarray | None = None) -
         parts = -(-g // size)
         out.extend(np.array_split(cols, parts))
     if pooled:
+        # Nearly equal blocks: a short last block would let almost every pair collide.
         rest = np.concatenate(pooled)
-        out.extend(rest[i : i + size] for i in range(0, rest.size, size))
+        out.extend(np.array_split(rest, -(-rest.size // size)))
     return out
 
 
@@ -234,8 +242,9 @@ def wildcard_keys(sub: np.ndarray) -> np.ndarray:
         return total[:, None] - terms + tag[None, :]
 
 
-def _collide(keys: np.ndarray, members: np.ndarray) -> Iterator[tuple[np.ndarray, np.ndarray]]:
-    """Pairs of members sharing a key (rows × keys per member).
+def _collide(keys: np.ndarray, members: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, int]:
+    """Members sharing a key (rows × keys per member), as runs of one sorted array:
+    (members in run order, run starts, run lengths, pairs inside the runs).
 
     The upper 32 bits of a key and the member's row are packed into one word and sorted
     (a plain sort is about twice as fast as an argsort); rows sharing only the upper
@@ -245,36 +254,172 @@ def _collide(keys: np.ndarray, members: np.ndarray) -> Iterator[tuple[np.ndarray
     packed |= np.repeat(members.astype(np.uint64), width)
     packed.sort()
     starts, lengths = runs(packed >> np.uint64(32))
-    yield from _pairs_within((packed & np.uint64(0xFFFFFFFF)).astype(np.int64), starts, lengths)
+    keep = lengths > 1
+    starts, lengths = starts[keep], lengths[keep]
+    count = int((lengths * (lengths - 1) // 2).sum())
+    return (packed & np.uint64(0xFFFFFFFF)).astype(np.int64), starts, lengths, count
+
+
+@dataclass
+class Coverage:
+    """How much of the exact search ran. `budget`: candidate pairs allowed (None: no
+    limit); `candidates`: candidate pairs generated; `skipped`: the columns of each part
+    of a block left out because its candidates would have exceeded the budget (a pair
+    whose only witness block is there may be missed)."""
+
+    budget: int | None = None
+    candidates: int = 0
+    skipped: list[np.ndarray] = field(default_factory=list)
+    skipped_pairs: int = 0  # candidate pairs the skipped parts would have made (a lower bound)
+
+    @property
+    def complete(self) -> bool:
+        return not self.skipped
+
+    def allows(self, count: int) -> bool:
+        """Spend `count` candidates if the budget still has them."""
+        if self.budget is not None and self.candidates + count > self.budget:
+            self.skipped_pairs += count
+            return False
+        self.candidates += count
+        return True
+
+    def skip(self, cols: np.ndarray) -> None:
+        if not any(np.array_equal(cols, c) for c in self.skipped):
+            self.skipped.append(cols)
+
+
+# Costs in candidate pairs (comparing one pair on 300 items: about 0.7 µs). A join of
+# two answered patterns costs a few numpy calls whatever it finds (about 0.15 ms), and
+# each key it builds and sorts about a tenth of a pair (measured with py-spy on the
+# benchmarks).
+JOIN_COST = 200
+KEYS_PER_PAIR = 10
+
+
+def _pattern_pairs(present: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Index pairs (i < j) of the patterns that share an answered position."""
+    k = present.size
+    if k < 2:
+        return np.zeros(0, np.int64), np.zeros(0, np.int64)
+    i, j = np.triu_indices(k, 1)
+    share = (present[i] & present[j]) != 0
+    return i[share], j[share]
 
 
 def candidate_pairs(
-    codes: np.ndarray, rows: np.ndarray, size: int, groups: np.ndarray | None = None
+    codes: np.ndarray, rows: np.ndarray, size: int, groups: np.ndarray | None = None,
+    coverage: Coverage | None = None,
 ) -> Iterator[tuple[np.ndarray, np.ndarray]]:
     """Batches of candidate pairs (rows of `codes`): a superset of every pair that, in
     some block, has an item both answered and at most one mismatch on the items both
-    answered (see the module docs). Pairs may repeat."""
-    for cols in blocks_for(codes[rows], size, groups):
+    answered (see the module docs). Pairs may repeat.
+
+    With a `coverage` budget the cheap parts go first, so the budget buys the most
+    search: every block's same-pattern keys, then the joins of different patterns,
+    cheapest first. A part whose cost would exceed what is left is skipped and
+    recorded."""
+    cov = coverage if coverage is not None else Coverage()
+    blocks = blocks_for(codes[rows], size, groups)
+    for cols in blocks:
         sub = codes[np.ix_(rows, cols)]
-        pattern = ((sub != 0).astype(np.int64) << np.arange(len(cols), dtype=np.int64)).sum(axis=1)
-        live = pattern != 0
+        live = (sub != 0).any(axis=1)
+        if _hopeless(sub[live], cov):
+            cov.skip(cols)
+            continue
         # Same codes, blanks included, except at most one position: same pattern with at
         # most one mismatch, or patterns differing at one position with no mismatch.
-        yield from _collide(wildcard_keys(sub[live]), rows[live])
-        # Other pattern pairs: joined on the items both answered, one mismatch allowed.
-        present = np.unique(pattern[live])
-        for ip, p in enumerate(present.tolist()):
-            in_p = pattern == p
-            for qv in present[ip + 1 :].tolist():
-                common = p & qv
-                if common == 0:
-                    continue
-                shared = [k for k in range(len(cols)) if common >> k & 1]
-                in_q = pattern == qv
-                kp = wildcard_keys(sub[np.ix_(in_p, shared)])
-                kq = wildcard_keys(sub[np.ix_(in_q, shared)])
-                yield from _pairs_across(kp.ravel(), np.repeat(rows[in_p], len(shared)),
-                                         kq.ravel(), np.repeat(rows[in_q], len(shared)))
+        members, starts, lengths, count = _collide(wildcard_keys(sub[live]), rows[live])
+        if cov.allows(count):
+            yield from _pairs_within(members, starts, lengths)
+        else:
+            cov.skip(cols)
+    for cols in blocks:
+        yield from _joins(codes, rows, cols, cov)
+
+
+# Above this many rows a block's candidate count is first estimated on a sample of them:
+# a block far beyond the budget is skipped without sorting all its keys.
+ESTIMATE_ROWS = 10_000
+
+
+def _hopeless(sub: np.ndarray, cov: Coverage) -> bool:
+    """Whether a block's same-pattern candidates, estimated on ESTIMATE_ROWS random rows
+    (pairs grow with the square of the rows), exceed four times what is left of the
+    budget; the estimate is then recorded as skipped."""
+    if cov.budget is None or sub.shape[0] <= 2 * ESTIMATE_ROWS:
+        return False
+    rng = np.random.default_rng(sub.shape[0])
+    part = sub[rng.choice(sub.shape[0], size=ESTIMATE_ROWS, replace=False)]
+    count = _collide(wildcard_keys(part), np.arange(ESTIMATE_ROWS))[3]
+    estimate = count * (sub.shape[0] / ESTIMATE_ROWS) ** 2
+    if estimate > 4 * (cov.budget - cov.candidates):
+        cov.skipped_pairs += int(estimate)
+        return True
+    return False
+
+
+def _joins(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, cov: Coverage) -> Iterator[tuple[np.ndarray, np.ndarray]]:
+    """Pairs of different answered patterns in one block, joined on the items both
+    answered with one mismatch allowed; cheapest joins first while the budget lasts."""
+    sub = codes[np.ix_(rows, cols)]
+    pattern = ((sub != 0).astype(np.int64) << np.arange(len(cols), dtype=np.int64)).sum(axis=1)
+    live = np.flatnonzero(pattern != 0)
+    if live.size == 0 or pattern[live].min() == pattern[live].max():
+        return  # one answered pattern: nothing to join
+    if cov.budget is not None and cov.budget - cov.candidates < JOIN_COST:
+        cov.skipped_pairs += JOIN_COST  # not even one join fits
+        cov.skip(cols)
+        return
+    order = live[np.argsort(pattern[live], kind="stable")]
+    present, first, sizes = _pattern_runs(pattern[order])
+    k = present.size
+    if cov.budget is not None and JOIN_COST * (k * (k - 1) // 2) > cov.budget - cov.candidates:
+        # Listing the pattern pairs alone is quadratic, and at JOIN_COST each they would
+        # not fit in what is left (most pattern pairs share an answered item).
+        cov.allows(JOIN_COST * (k * (k - 1) // 2))
+        cov.skip(cols)
+        return
+    pi, pj = _pattern_pairs(present) if k <= 4096 else _pattern_pairs_big(present)
+    if pi.size == 0:
+        return
+    width = np.bitwise_count(present[pi] & present[pj]).astype(np.int64)
+    cost = JOIN_COST + (sizes[pi] + sizes[pj]) * width // KEYS_PER_PAIR
+    rank = np.argsort(cost, kind="stable")
+    spent = 0
+    for a, b, c in zip(pi[rank].tolist(), pj[rank].tolist(), cost[rank].tolist(), strict=True):
+        if not cov.allows(c):
+            # Joins come cheapest first, so none of the rest fits either.
+            cov.skip(cols)
+            cov.skipped_pairs += int(cost.sum()) - c - spent
+            return
+        spent += c
+        common = int(present[a]) & int(present[b])
+        shared = np.array([j for j in range(len(cols)) if common >> j & 1], np.int64)
+        in_p = order[first[a] : first[a] + sizes[a]]
+        in_q = order[first[b] : first[b] + sizes[b]]
+        kp = wildcard_keys(sub[np.ix_(in_p, shared)])
+        kq = wildcard_keys(sub[np.ix_(in_q, shared)])
+        yield from _pairs_across(kp.ravel(), np.repeat(rows[in_p], shared.size),
+                                 kq.ravel(), np.repeat(rows[in_q], shared.size), cov, cols)
+
+
+def _pattern_runs(sorted_patterns: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The distinct patterns of a sorted array, where each starts and how many."""
+    starts, lengths = runs(sorted_patterns)
+    return sorted_patterns[starts] if starts.size else sorted_patterns[:0], starts, lengths
+
+
+def _pattern_pairs_big(present: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """`_pattern_pairs` without the k × k index arrays, for blocks with very many
+    patterns (only an unbudgeted search lists them)."""
+    left: list[np.ndarray] = []
+    right: list[np.ndarray] = []
+    for i in range(present.size - 1):
+        j = i + 1 + np.flatnonzero((present[i + 1 :] & present[i]) != 0)
+        left.append(np.full(j.size, i, np.int64))
+        right.append(j)
+    return np.concatenate(left), np.concatenate(right)
 
 
 def compare_pairs(codes: np.ndarray, a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -304,17 +449,20 @@ def _batched(parts: Iterator[tuple[np.ndarray, np.ndarray]]) -> Iterator[tuple[n
         yield np.concatenate([x for x, _ in held]), np.concatenate([y for _, y in held])
 
 
-def near_pairs(codes: np.ndarray, threshold: float, min_items: int, groups: np.ndarray | None = None) -> Pairs:
+def near_pairs(codes: np.ndarray, threshold: float, min_items: int, groups: np.ndarray | None = None,
+               coverage: Coverage | None = None) -> Pairs:
     """Every pair of rows compared on at least `min_items` items with a percent match
     above `threshold`, exactly (see the module docs). `groups`: a label per column;
-    columns with one label are blocked together (speed only, never the result)."""
+    columns with one label are blocked together (speed only, never the result).
+    `coverage`: a budget of candidate pairs; parts of the search beyond it are skipped
+    and recorded there (every pair returned is still exact, but some may be missing)."""
     size = block_size(threshold)
     rows = np.flatnonzero((codes != 0).sum(axis=1) >= max(1, min_items))
     found: list[tuple[np.ndarray, ...]] = []
     if size and rows.size > 1:
         seen = np.zeros(0, np.int64)
         n = np.int64(codes.shape[0])
-        for a, b in _batched(candidate_pairs(codes, rows, size, groups)):
+        for a, b in _batched(candidate_pairs(codes, rows, size, groups, coverage)):
             lo, hi = np.minimum(a, b), np.maximum(a, b)
             key = np.unique(lo.astype(np.int64) * n + hi)
             key = key[(key // n) != (key % n)]  # a row never pairs with itself

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from rich.console import Console
+from rich.console import Console, JustifyMethod
 from rich.markup import escape
 from rich.table import Table
 from rich.text import Text
@@ -29,15 +29,16 @@ def render_validation(console: Console, result: ValidationResult, *, show: int =
         padding=(0, 1, 0, 0),  # right padding only: the route bar fits 80 columns
     )
     table.add_column("item", justify="left", no_wrap=True, overflow="fold")
-    for col, justify in (
+    columns: tuple[tuple[str, JustifyMethod], ...] = (
         ("expected", "right"),
         ("answered", "right"),
         ("off path", "right"),
         ("missing", "right"),
         ("invalid", "right"),
         ("route", "left"),  # bar: █ answered on path, ░ missing, ▓ off path; then the flag
-    ):
-        table.add_column(col, justify=justify, no_wrap=True)  # type: ignore[arg-type]
+    )
+    for col, justify in columns:
+        table.add_column(col, justify=justify, no_wrap=True)
     bar_width = BAR_WIDTH if console.width < 100 else 2 * BAR_WIDTH
     for r in result.table.head(table_rows).itertuples(index=False):
         over = bool(r.over_expected)
@@ -89,9 +90,9 @@ def render_validation(console: Console, result: ValidationResult, *, show: int =
     console.print()
     disp = ", ".join(f"{k} {v}" for k, v in result.dispositions.items())
     console.print(f"dispositions: {disp}", highlight=False)
-    sev = result.severity_counts()
+    totals = result.severity_counts()
     parts = [
-        f"[{STYLE[k]}]{v} {k}{'s' if v != 1 else ''}[/{STYLE[k]}]" if v else f"0 {k}s" for k, v in sev.items()
+        f"[{STYLE[k]}]{v} {k}{'s' if v != 1 else ''}[/{STYLE[k]}]" if v else f"0 {k}s" for k, v in totals.items()
     ]
     console.print(f"{result.respondents} respondents validated: " + ", ".join(parts), highlight=False)
     for note in result.notes:

@@ -35,11 +35,11 @@ def diff_markdown(diff: SpecDiff) -> str:
         )
     if len(diff.changes) > MAX_ROWS:
         lines.append(f"\n… and {len(diff.changes) - MAX_ROWS} more changes (`logiccheck diff --format json` lists all).")
-    witnesses = [c for c in diff.changes[:MAX_ROWS] if c.witness is not None]
+    witnesses = [(c, c.witness) for c in diff.changes[:MAX_ROWS] if c.witness is not None]
     if witnesses:
         lines += ["", "<details><summary>Witness respondents</summary>", ""]
-        for c in witnesses:
-            answers = ", ".join(f"`{k}` = {_cell(v)}" for k, v in c.witness.items()) or "any respondent"
+        for c, witness in witnesses:
+            answers = ", ".join(f"`{k}` = {_cell(v)}" for k, v in witness.items()) or "any respondent"
             lines.append(f"- `{c.item}` is asked only in the **{c.asked_in}** version of: {answers}")
         lines += ["", "</details>"]
     used = sorted({c.kind for c in diff.changes})

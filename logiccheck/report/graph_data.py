@@ -18,6 +18,8 @@ from logiccheck.model import nodes as n
 from logiccheck.model.questionnaire import Entry, Questionnaire
 
 NodeKind = Literal["item", "gate", "let", "sample", "stop", "skip"]
+# Every other entry kind draws as itself (items are items or gates; checks are not drawn).
+_ENTRY_NODE_KIND: dict[str, NodeKind] = {"let": "let", "sample": "sample", "stop": "stop", "skip": "skip"}
 MAX_LABEL = 60  # longer condition texts are cut with an ellipsis
 
 
@@ -140,7 +142,7 @@ def build_drawing(q: Questionnaire) -> Drawing:
                     id=gid,
                     name=owner.name,
                     kind="grid" if isinstance(owner, n.Grid) else "section",
-                    title=getattr(owner, "title", None) or getattr(owner, "text", ""),
+                    title=owner.title if isinstance(owner, n.Section) else owner.text,
                     parent=parent,
                     shuffled=bool(getattr(owner, "shuffled", False)),
                     condition=span_text(q.text, owner.when.span) if owner.when is not None else None,
@@ -151,7 +153,7 @@ def build_drawing(q: Questionnaire) -> Drawing:
         if entry.kind == "item":
             kind = "gate" if entry.stmt.flags.gate else "item"
         else:
-            kind = entry.kind  # type: ignore[assignment]
+            kind = _ENTRY_NODE_KIND[entry.kind]
         nid = _node_id(entry)
         entry_nodes[entry.index] = nid
         drawing.nodes[nid] = DrawNode(nid, entry.name, kind, _detail(q, entry.stmt), parent, entry.span.line)
@@ -167,8 +169,11 @@ def build_drawing(q: Questionnaire) -> Drawing:
             if source is None:
                 continue
             if read.via == "context":
-                target = group_ids[id(read.owner)]
-                label = span_text(q.text, read.owner.when.span)
+                owner = read.owner
+                # A context read comes from its section's or grid's condition.
+                assert owner is not None and owner.when is not None
+                target = group_ids[id(owner)]
+                label = span_text(q.text, owner.when.span)
             elif read.via == "pipe":
                 target, label = target_node, "pipe"
             elif read.via == "let":

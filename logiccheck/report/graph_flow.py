@@ -115,7 +115,8 @@ def flow_picture(q: Questionnaire, diagnostics: Iterable[Diagnostic] = ()) -> Fl
             else:
                 title = "Sample variables (known before the interview)" if dn.kind == "sample" else "Outside sections"
                 groups.append(FlowGroup(bid, title))
-        kind, detail = dn.kind, dn.detail
+        kind: str = dn.kind  # a node kind, or "row" for an item in a grid
+        detail = dn.detail
         if grid is not None and kind in ("item", "gate"):
             kind, detail = "row", f"grid {grid} · {detail}"
         elif kind == "sample":

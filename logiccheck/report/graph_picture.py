@@ -10,7 +10,7 @@ from __future__ import annotations
 import io
 from collections.abc import Iterable
 from dataclasses import dataclass
-from typing import TYPE_CHECKING, Any, ClassVar
+from typing import TYPE_CHECKING, Any, ClassVar, Literal
 
 from logiccheck.diagnostics import Diagnostic
 from logiccheck.model.questionnaire import Questionnaire
@@ -44,7 +44,7 @@ KIND_LABEL = {
     "item": "item", "gate": "gate", "row": "grid row", "let": "derived value",
     "sample": "sample variable", "stop": "stop", "skip": "skip",
 }
-EDGE_STYLE: dict[str, tuple[str, str]] = {  # via -> (colour, line style)
+EDGE_STYLE: dict[str, tuple[str, Literal["-", "--"]]] = {  # via -> (colour, line style)
     "condition": ("#1f4e8c", "-"),
     "context": ("#7a3e9d", "-"),
     "let": ("#2e7d32", "-"),
@@ -166,10 +166,10 @@ def draw_picture(picture: FlowPicture, name: str = "", *, legend: bool = True) -
     boxes: dict[str, tuple[float, float, float, float]] = {}
     for nid, (x, y) in corners.items():
         node = picture.nodes[nid]
-        face, edge = UNREACHABLE if node.unreachable else BOX_STYLE.get(node.kind, BOX_STYLE["item"])
+        face, outline = UNREACHABLE if node.unreachable else BOX_STYLE.get(node.kind, BOX_STYLE["item"])
         thick = 2.0 if node.kind in ("gate", "stop") else 1.0
         style = "round,pad=0,rounding_size=0.12" if node.kind != "stop" else "square,pad=0"
-        patch = FancyBboxPatch((x, y), BOX_W, BOX_H, boxstyle=style, facecolor=face, edgecolor=edge,
+        patch = FancyBboxPatch((x, y), BOX_W, BOX_H, boxstyle=style, facecolor=face, edgecolor=outline,
                                linewidth=thick, linestyle="--" if node.kind == "skip" else "-",
                                hatch="///" if node.unreachable else None, zorder=3)
         ax.add_artist(patch)
@@ -215,7 +215,7 @@ def draw_picture(picture: FlowPicture, name: str = "", *, legend: bool = True) -
 
 def _centre(patch: Any) -> tuple[float, float]:
     if hasattr(patch, "center"):
-        return tuple(patch.center)  # type: ignore[return-value]
+        return tuple(patch.center)
     return patch.get_x() + patch.get_width() / 2, patch.get_y() + patch.get_height() / 2
 
 

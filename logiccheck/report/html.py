@@ -87,7 +87,7 @@ def _finding_groups(data: ReportData) -> list[dict[str, Any]]:
     f = data.findings
     if f is None or f.empty:
         return []
-    groups = []
+    groups: list[dict[str, Any]] = []
     for (check, severity), part in f.groupby(["check", "severity"], sort=False):
         ids = [i for i in pd.unique(part["respondent"].map(_text)) if i]  # file-level findings have none
         sample = part.head(MAX_ROWS)

@@ -15,6 +15,7 @@ import pandas as pd
 from logiccheck.report.extra import require_report_extra
 
 if TYPE_CHECKING:
+    from matplotlib.artist import Artist
     from matplotlib.figure import Figure
 
 ROW_H = 0.22  # inches per bar
@@ -94,7 +95,7 @@ def item_chart(items: pd.DataFrame, respondents: int | None = None) -> Figure:
     ax.set_axisbelow(True)
     for spine in ("top", "right"):
         ax.spines[spine].set_visible(False)
-    handles = [
+    handles: list[Artist] = [
         Patch(facecolor=COLOURS["on_path"], label="answered on path"),
         Patch(facecolor="white", edgecolor=COLOURS["missing"], hatch="////", label="missing on path"),
         Patch(facecolor=COLOURS["out_of_path"], label="out of path"),

@@ -12,7 +12,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import stats as sps
 
 # Below this many complete respondents the statistics are not computed (common practice,
 # no source: with fewer, a variance barely exists).
@@ -50,6 +49,9 @@ def feldt_interval(alpha: float, n: int, k: int, level: float = 0.95) -> tuple[f
     df1 = n - 1
     df2 = df1 * (k - 1)
     tail = (1.0 - level) / 2.0
+    # scipy.stats takes about a second to import: only runs with a scale pay for it.
+    from scipy import stats as sps
+
     lower = 1.0 - (1.0 - alpha) * sps.f.isf(tail, df1, df2)
     upper = 1.0 - (1.0 - alpha) * sps.f.isf(1.0 - tail, df1, df2)
     return float(lower), float(upper)

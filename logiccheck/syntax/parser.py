@@ -238,7 +238,7 @@ def _error_to_diagnostic(err: Exception, text: str, file: str) -> tuple[Diagnost
     line, column = getattr(err, "line", -1), getattr(err, "column", -1)
     token = getattr(err, "token", None)
     at_end = isinstance(err, UnexpectedEOF) or getattr(token, "type", "") == "$END"
-    if getattr(token, "type", "") == "_INDENT" and getattr(token, "end_line", None):
+    if token is not None and getattr(token, "type", "") == "_INDENT" and getattr(token, "end_line", None):
         # The indent token borrows the position of the line break before it; the
         # mistake is the indented line itself, at its first character.
         line, column = token.end_line, token.end_column
@@ -256,8 +256,10 @@ def _error_to_diagnostic(err: Exception, text: str, file: str) -> tuple[Diagnost
         close = ")" if ch == "(" else "}"
         message = f"this `{ch}` is never closed; add `{close}` before the end of the statement"
     elif isinstance(err, UnexpectedCharacters):
-        char = text[err.pos_in_stream] if 0 <= err.pos_in_stream < len(text) else "?"
-        rest = text[err.pos_in_stream + 1 :].split("\n", 1)[0]
+        # `offset` is the character's position here (lark's `pos_in_stream`, which its
+        # type information leaves as None).
+        char = text[offset] if 0 <= offset < len(text) else "?"
+        rest = text[offset + 1 :].split("\n", 1)[0]
         if char == '"' and '"' not in rest:
             message = 'this text has no closing quote; end it with `"` on the same line'
         elif "STRING" in expected and (char.isalnum() or char in "?_"):

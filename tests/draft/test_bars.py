@@ -15,7 +15,7 @@ from logiccheck.checks.data_runner import run_data_checks
 from logiccheck.checks.runner import run_checks
 from logiccheck.data import DataMapping, validate
 from logiccheck.data.mapping import mapping_from_dict
-from logiccheck.draft import draft_file
+from logiccheck.draft import draft_file, mismatch
 from logiccheck.draft.mismatch import routing_mismatch
 from logiccheck.loader import load_text
 from tests.data.test_labels import to_labels
@@ -92,6 +92,20 @@ def test_routing_mismatch_finds_exactly_the_two_wrong_conditions(codes_export: P
     said = {h.item: h.message for h in hits}
     assert "as if asked `when water = yes`" in said["water_ok"] and "shed = yes` (" in said["water_ok"]
     assert "as if asked `when waitlist = yes`" in said["wait_years"]
+
+
+def test_the_quick_screen_keeps_both_wrong_conditions_on_a_larger_export(tmp_path: Path) -> None:
+    # 9,000 respondents: the 2,000-row screen runs before the full search, and must not
+    # rule out either planted item (nor let a right one through).
+    frame, _ = export(rows=9000, seed=11)
+    path = tmp_path / "allotments_9000.csv"
+    frame.to_csv(path, index=False)
+    text = SPEC.read_text()
+    for right, wrong in WRONG.values():
+        text = text.replace(right, wrong)
+    ctx = data_context(questionnaire(text), path)
+    assert ctx.n > 2 * mismatch.SCREEN_ROWS
+    assert sorted(h.item for h in routing_mismatch(ctx)) == sorted(WRONG)
 
 
 def test_routing_mismatch_is_silent_when_the_spec_is_right(codes_export: Path) -> None:

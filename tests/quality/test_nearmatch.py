@@ -10,6 +10,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from logiccheck.quality import nearmatch as nm
+from logiccheck.quality.config import QualityConfig
 from tests.quality.context import build_context, quality_blocks
 
 
@@ -147,3 +148,46 @@ def test_the_check_compares_answers_as_the_export_holds_them() -> None:
     exact = {int(r) for b in blocks if b.check == "duplicate-response" for r in b.rows}
     assert {r: pytest.approx(s, abs=1e-4) for r, s in want.items() if r not in exact} == got
     assert {0, 1, 2, 3} <= set(want)
+
+
+@settings(max_examples=60, deadline=None)
+@given(seed=st.integers(0, 2**32 - 1), n=st.integers(2, 45), m=st.integers(1, 30),
+       blank=st.sampled_from([0.0, 0.3, 0.6]), budget=st.integers(0, 400))
+def test_a_budgeted_search_returns_only_true_pairs_and_all_of_them_when_complete(
+        seed: int, n: int, m: int, blank: float, budget: int) -> None:
+    codes = random_codes(np.random.default_rng(seed), n, m, 3, blank)
+    want = naive_pairs(codes, 0.85, 10)
+    coverage = nm.Coverage(budget=budget)
+    pairs = nm.near_pairs(codes, 0.85, 10, coverage=coverage)
+    got = set(zip(pairs.a.tolist(), pairs.b.tolist(), pairs.compared.tolist(), pairs.matched.tolist(), strict=True))
+    assert got <= want  # every pair returned is exact, whatever the budget
+    assert coverage.budget is None or coverage.candidates <= coverage.budget
+    if coverage.complete:
+        assert got == want
+    else:
+        assert coverage.skipped and coverage.skipped_pairs > 0
+
+
+def test_two_option_answers_stop_at_the_budget_with_a_note_and_a_sample_estimate() -> None:
+    # Forty yes/no items answered at random: chance agreement makes a candidate of almost
+    # every pair, so a budget of one candidate per respondent cannot cover the search.
+    items = "\n".join(f"q{i}: single yn \"Q{i}?\"" for i in range(40))
+    spec = f'survey s "S"\ncodes yn\n  yes = 1 "Yes"\n  no = 2 "No"\n{items}\n'
+    rng = np.random.default_rng(3)
+    n = 300
+    values = rng.choice(["1", "2"], size=(n, 40))
+    values[1] = values[0]  # an exact copy: duplicate-response, not near-duplicate
+    export = pd.DataFrame(values, columns=[f"q{i}" for i in range(40)])
+    export.insert(0, "id", [f"r{i}" for i in range(n)])
+    config = QualityConfig.model_validate({"duplicates": {"near_search_budget": 1}})
+    ctx = build_context(spec, export, config)
+    quality_blocks(ctx)
+    note = next(x for x in ctx.notes if x.startswith("near-duplicate:"))
+    assert "near_search_budget" in note and "drawn at random" in note
+    coverage = ctx.memo["quality.near_coverage"]
+    assert not coverage.complete and coverage.candidates <= n
+    # The same export without a budget is searched completely (no note).
+    full = build_context(spec, export, QualityConfig.model_validate({"duplicates": {"near_search_budget": 0}}))
+    quality_blocks(full)
+    assert full.memo["quality.near_coverage"].complete
+    assert not [x for x in full.notes if x.startswith("near-duplicate:")]

@@ -11,8 +11,9 @@ from logiccheck.checks.context import LintContext
 from logiccheck.checks.registry import register
 from logiccheck.checks.routing.common import analysis, explain, target
 from logiccheck.diagnostics import Diagnostic
-from logiccheck.logic.routing import Statement
+from logiccheck.logic.routing import RoutingAnalysis, Statement
 from logiccheck.model import nodes as n
+from logiccheck.model.questionnaire import Entry
 
 READING_WORDS = {
     "blank": "a blank counts as a value unequal to every code",
@@ -20,12 +21,13 @@ READING_WORDS = {
 }
 
 
-def _reachable(a, st: Statement) -> bool:  # type: ignore[no-untyped-def]
+def _reachable(a: RoutingAnalysis, st: Statement) -> bool:
     if st.key.startswith("block:"):
         return a.facts.possible(("st-reach", st.key))
     if st.key.startswith("let:"):
         return True
     entry = st.entry
+    assert entry is not None  # only section/grid statements have no entry
     if st.key.startswith("require:"):
         return a.facts.possible(("fires", entry.index))
     return a.facts.possible(("reached", entry.index))
@@ -44,7 +46,7 @@ def _covered(st: Statement, can_true: bool) -> bool:
 
 
 def _roots(st: Statement) -> list[str]:
-    return [st.key] if st.key.startswith("block:") else [f"entry:{st.entry.index}"]  # type: ignore[union-attr]
+    return [st.root]
 
 
 @register(
@@ -122,6 +124,7 @@ def missing_sensitive(ctx: LintContext) -> Iterable[Diagnostic]:
             continue
         reading = hits[0]
         model = a.facts.model(("sensitive", st.key, reading))
+        assert model is not None  # possible() above: the question has a model
         ours, _ = a.enc.truth(st.expr, at=st.at)
         holds = z3.is_true(model.eval(ours, model_completion=True))
         text = a.enc.source(st.expr.span)
@@ -149,10 +152,11 @@ def advice(ctx: LintContext, st: Statement, reading: str) -> str:
     q = ctx.q
     names: list[str] = []
     for node in n.walk(st.expr):
-        name = node.name if isinstance(node, n.Ref) else None
-        target_entry = q.symbols.get(name) if name else None
-        if target_entry is not None and target_entry.kind == "item" and name not in names:
-            names.append(name)  # type: ignore[arg-type]
+        if not isinstance(node, n.Ref):
+            continue
+        target_entry = q.symbols.get(node.name)
+        if target_entry is not None and target_entry.kind == "item" and node.name not in names:
+            names.append(node.name)
     if reading == "blank":
         first = names[0] if names else "..."
         return f"make the intent explicit: `answered({first}) and ...`"
@@ -160,11 +164,11 @@ def advice(ctx: LintContext, st: Statement, reading: str) -> str:
     first = coded[0] if coded else (names[0] if names else "...")
     spec = q.symbols[first].stmt if first in q.symbols else None
     kind = getattr(getattr(spec, "type", None), "kind", None)
-    if kind in ("number", "decimal") and spec.type.lo is not None and spec.type.hi is not None:  # type: ignore[union-attr]
-        rewrite = _as_range(ctx, st, first, spec.type.lo, spec.type.hi, kind == "number")  # type: ignore[union-attr]
+    if spec is not None and kind in ("number", "decimal") and spec.type.lo is not None and spec.type.hi is not None:
+        rewrite = _as_range(ctx, st, first, spec.type.lo, spec.type.hi, kind == "number")
         if rewrite is not None:
             return f"make the intent explicit: write {rewrite} or mark `{first}` `strict`"
-        lo, hi = _num(spec.type.lo), _num(spec.type.hi)  # type: ignore[union-attr]
+        lo, hi = _num(spec.type.lo), _num(spec.type.hi)
         return (f"make the intent explicit: compare with a range (`{first} in LO..HI`, inside {lo}..{hi}) "
                 f"or mark `{first}` `strict`")
     return f"make the intent explicit: list the codes (`{first} in (...)`) or mark `{first}` `strict`"
@@ -176,7 +180,8 @@ def _as_range(ctx: LintContext, st: Statement, name: str, lo: float, hi: float, 
     for node in n.walk(st.expr):
         if not isinstance(node, n.Compare) or node.op not in ("<", "<=", ">", ">="):
             continue
-        left, right, op = node.left, node.right, node.op
+        left, right = node.left, node.right
+        op: str = node.op
         if isinstance(right, n.Ref) and isinstance(left, n.Num):
             left, right, op = right, left, {"<": ">", "<=": ">=", ">": "<", ">=": "<="}[op]
         if not (isinstance(left, n.Ref) and left.name == name and isinstance(right, n.Num)):
@@ -232,7 +237,7 @@ def unsafe_pipe(ctx: LintContext) -> Iterable[Diagnostic]:
         )
 
 
-def _shown_word(entry) -> str:  # type: ignore[no-untyped-def]
+def _shown_word(entry: Entry) -> str:
     if entry.kind == "stop":
         return f"stop `{entry.name}` ends the interview"
     return f"`{entry.name}` is asked"

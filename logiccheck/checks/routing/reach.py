@@ -8,16 +8,18 @@ from logiccheck.checks.context import LintContext
 from logiccheck.checks.registry import register
 from logiccheck.checks.routing.common import analysis, explain, subject_of, target
 from logiccheck.diagnostics import Diagnostic
+from logiccheck.logic.routing import RoutingAnalysis
 from logiccheck.model import nodes as n
+from logiccheck.model.questionnaire import Entry, Questionnaire
 
 
-def _word(entry) -> str:  # type: ignore[no-untyped-def]
+def _word(entry: Entry) -> str:
     if entry.kind == "item":
         return f"grid row `{entry.name}`" if entry.grid is not None else f"`{entry.name}`"
     return f"{entry.kind} `{entry.name}`"
 
 
-def _entered_later(a, q, name: str) -> bool:  # type: ignore[no-untyped-def]
+def _entered_later(a: RoutingAnalysis, q: Questionnaire, name: str) -> bool:
     """Some statement of a block not reached at its start is reached further in (a
     `skip to` that passes over its start lands inside it)."""
     return any(
@@ -48,7 +50,7 @@ def unreachable_item(ctx: LintContext) -> Iterable[Diagnostic]:
     dead_blocks: set[str] = set()
     # Blocks first, outermost first: what lies inside a dead block is not repeated.
     for name, block in a.enc.blocks.items():
-        key = ("block", name)
+        key: tuple[str, str | int] = ("block", name)  # ("asked", index) etc. below
         if key not in a.questions or a.facts.possible(key):
             continue
         if any(o.name in dead_blocks for o, _ in block.context[:-1]):

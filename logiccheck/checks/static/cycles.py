@@ -83,6 +83,7 @@ def _report(ctx: LintContext, graph: nx.DiGraph, found: list[list[str]], truncat
         path = " → ".join(f"`{x}`" for x in [*names, names[0]])
         if len(cycle) == 1 and reads[0].via == "context":
             owner = reads[0].owner
+            assert owner is not None  # a "context" read always names its section or grid
             word = "grid" if getattr(owner, "rows", None) is not None else "section"
             message = (
                 f"`{names[0]}` is inside {word} `{owner.name}`, whose condition reads `{names[0]}`: "

@@ -60,6 +60,7 @@ def forward_reference(ctx: LintContext) -> Iterable[Diagnostic]:
             where = f"line {target.span.line}"
             if read.via == "context":
                 owner = read.owner
+                assert owner is not None  # a "context" read always names its section or grid
                 start = starts.get(id(owner), entry.index)
                 if target.index < start or (id(owner), read.span) in done_blocks:
                     continue
