@@ -55,7 +55,8 @@ def clean_command(spec: str, data: str, map_file: str | None, frame: str | None,
         fail(str(err))
     console = make_console(color)
     s = run.summary
-    console.print(f"[bold]logiccheck clean[/bold] {data}: {s['input']['respondents']} respondents in, "
+    shown = "standard input" if data == "-" else data
+    console.print(f"[bold]logiccheck clean[/bold] {shown}: {s['input']['respondents']} respondents in, "
                   f"{s['output']['respondents']} out; {s['output']['cells_blanked']} cells blanked")
     for check, count in s["blanked"].items():
         console.print(f"  blanked  {check:<20} {count}")
