@@ -12,7 +12,7 @@ from logiccheck.checks.registry import data_check
 from logiccheck.data import causes
 from logiccheck.data.findings import Hits
 from logiccheck.draft import screen
-from logiccheck.draft.mine import Mined, Var, mine, sample_rows
+from logiccheck.draft.mine import Mined, Var, explained, sample_rows, search
 
 # "Far better": the mined condition must explain at least this share of respondents more
 # than the spec's own and leave at most half of its errors. Common practice, no source.
@@ -21,35 +21,59 @@ MISMATCH_ROWS = 10
 MISMATCH_ERRORS = 0.5
 
 
-def context_vars(ctx: DataContext) -> list[Var]:
-    """The context's items as the miner sees them. A value counts only where it was due and
-    valid, as the routing reads it (an answer off the route opens nothing later)."""
+def item_var(ctx: DataContext, j: int, rows: np.ndarray | None = None) -> Var:
+    """Item `j` as the miner sees it, cut to `rows` where given. A value counts only where
+    it was due and valid, as the routing reads it (an answer off the route opens nothing
+    later)."""
     q = ctx.q
-    out: list[Var] = []
-    for j, name in enumerate(ctx.items):
-        stmt = q.symbols[name].stmt
-        usable = ctx.due[:, j] & ctx.valid[:, j]
-        kind = stmt.type.kind
-        codes = q.item_codes(stmt)
-        if kind == "single" and codes is not None:
-            value = np.where(usable, ctx.value_of(name), np.nan)
-            opts = sorted(o.value for o in codes.options)
-            nr = [o for o in q.nonresponse] if q.allows_nonresponse(stmt) else []
-            labels = {o.value: o.label for o in [*codes.options, *nr]}
-            out.append(Var(name, "coded", usable, value, ctx.nonresponse[:, j] & usable, options=opts,
-                           nr_codes=[o.value for o in nr], labels=labels, position=j))
-        elif kind in ("number", "decimal"):
-            value = np.where(usable, ctx.value_of(name), np.nan)
-            out.append(Var(name, "number", usable, value, ctx.nonresponse[:, j] & usable, integer=kind == "number",
-                           position=j))
-        elif kind == "multi" and codes is not None:
-            opts = sorted(o.value for o in codes.options)
-            chosen = np.column_stack([usable & (ctx.value_of(f"{name}_{v}") == 1) for v in opts]) if opts else None
-            out.append(Var(name, "multi", usable, chosen=chosen, options=opts,
-                           labels={o.value: o.label for o in codes.options}, position=j))
-        else:
-            out.append(Var(name, "text", usable, position=j))
-    return out
+    name = ctx.items[j]
+    stmt = q.symbols[name].stmt
+    usable = ctx.due[:, j] & ctx.valid[:, j]
+    kind = stmt.type.kind
+    codes = q.item_codes(stmt)
+
+    def cut(x: np.ndarray) -> np.ndarray:
+        return x if rows is None else x[rows]
+
+    if kind == "single" and codes is not None:
+        value = np.where(usable, ctx.value_of(name), np.nan)
+        opts = sorted(o.value for o in codes.options)
+        nr = [o for o in q.nonresponse] if q.allows_nonresponse(stmt) else []
+        labels = {o.value: o.label for o in [*codes.options, *nr]}
+        return Var(name, "coded", cut(usable), cut(value), cut(ctx.nonresponse[:, j] & usable), options=opts,
+                   nr_codes=[o.value for o in nr], labels=labels, position=j)
+    if kind in ("number", "decimal"):
+        value = np.where(usable, ctx.value_of(name), np.nan)
+        return Var(name, "number", cut(usable), cut(value), cut(ctx.nonresponse[:, j] & usable),
+                   integer=kind == "number", position=j)
+    if kind == "multi" and codes is not None:
+        opts = sorted(o.value for o in codes.options)
+        chosen = np.column_stack([cut(usable & (ctx.value_of(f"{name}_{v}") == 1)) for v in opts]) if opts else None
+        return Var(name, "multi", cut(usable), chosen=chosen, options=opts,
+                   labels={o.value: o.label for o in codes.options}, position=j)
+    return Var(name, "text", cut(usable), position=j)
+
+
+class Columns:
+    """The context's items as the miner's columns, built when first asked: cut to a
+    sample for the searches, whole only for the columns a found condition reads (whole
+    float columns of every item would take 2.4 GB at 1,000,000 × 300)."""
+
+    def __init__(self, ctx: DataContext) -> None:
+        self.ctx = ctx
+        self.index = {name: j for j, name in enumerate(ctx.items)}
+        self._whole: dict[str, Var] = {}
+
+    def cut(self, rows: np.ndarray | None, upto: int) -> list[Var]:
+        """Items 0..upto-1, cut to `rows` (None: whole, and kept)."""
+        if rows is None:
+            return [self.whole(self.ctx.items[j]) for j in range(upto)]
+        return [item_var(self.ctx, j, rows) for j in range(upto)]
+
+    def whole(self, name: str) -> Var:
+        if name not in self._whole:
+            self._whole[name] = item_var(self.ctx, self.index[name])
+        return self._whole[name]
 
 
 def own_condition(ctx: DataContext, name: str) -> str:
@@ -74,21 +98,25 @@ def alive_before(ctx: DataContext, name: str) -> np.ndarray:
     return np.asarray(stop_at) > ctx.q.symbols[name].index
 
 
-def compare(ctx: DataContext, vars_: list[Var], j: int, need: float = 0,
-            small: list[Var] | None = None) -> tuple[Mined, int] | None:
-    """The best mined condition for item `j` and how many respondents its own routing
-    explains; None when nobody answered it, or when its own routing leaves fewer than
-    `need` respondents unexplained (no condition can then gain `need`: mining is skipped)."""
+def compare(ctx: DataContext, columns: Columns, j: int, need: float, sample: np.ndarray | None,
+            small: list[Var]) -> tuple[Mined, int] | None:
+    """The best mined condition for item `j` (searched on `small`, the earlier columns cut
+    to `sample`, or whole without a sample; scored on every row) and how many respondents
+    its own routing explains; None when nobody answered it, or when its own routing leaves
+    fewer than `need` respondents unexplained (no condition can then gain `need`)."""
     answered = ctx.has_value[:, j]
     if not answered.any():
         return None
     own = int((ctx.due[:, j] == answered).sum())
     if ctx.n - own < need:
         return None
-    sample = sample_rows(ctx.n) if small is not None else None
-    mined = mine(vars_[:j], answered, alive_before(ctx, ctx.items[j]), sample=sample,
-                 sampled=small[:j] if small is not None else None)
-    return mined, own
+    alive = alive_before(ctx, ctx.items[j])
+    if sample is None:
+        cond = search(small[:j], answered, alive)
+    else:
+        cond = search(small[:j], answered[sample], alive[sample])
+    used = {name: columns.whole(name) for name in cond.reads()}
+    return Mined(cond, explained(cond, used, answered, alive), ctx.n), own
 
 
 # Rows of the quick screen: an item whose best simple condition gains less than half the
@@ -101,18 +129,22 @@ class Screen:
     """The vectorised screen (`draft/screen.py`) on a small random sample: rules out the
     items no simple condition helps before the full search."""
 
-    def __init__(self, ctx: DataContext, vars_: list[Var], need: float) -> None:
+    def __init__(self, ctx: DataContext, searched: list[Var], sample: np.ndarray | None, need: float) -> None:
+        """`searched`: every item's column cut to `sample` (None: whole); the screen takes
+        SCREEN_ROWS of those rows, so no column is typed again for it."""
         self.keep: np.ndarray | None = None
-        if ctx.n <= 2 * SCREEN_ROWS:
+        if ctx.n <= 2 * SCREEN_ROWS or not ctx.items:
             return
+        size = ctx.n if sample is None else sample.size
         rng = np.random.default_rng(1)
-        rows = np.sort(rng.choice(ctx.n, size=SCREEN_ROWS, replace=False))
-        alive_before(ctx, ctx.items[0]) if ctx.items else None  # fills the memo
-        stop_at = np.asarray(ctx.memo["draft.stop_at"])[rows] if ctx.items else np.zeros(rows.size, np.int64)
+        at = np.sort(rng.choice(size, size=min(SCREEN_ROWS, size), replace=False))
+        rows = at if sample is None else sample[at]
+        alive_before(ctx, ctx.items[0])  # fills the memo
+        stop_at = np.asarray(ctx.memo["draft.stop_at"])[rows]
         index = np.array([ctx.q.symbols[name].index for name in ctx.items], dtype=np.int64)
         alive = stop_at[:, None] > index[None, :]
-        self.keep = screen.promising([v.subset(rows) for v in vars_], ctx.has_value[rows], alive,
-                                     ctx.due[rows], need * SCREEN_ROWS / ctx.n / 2)
+        self.keep = screen.promising([v.subset(at) for v in searched], ctx.has_value[rows], alive,
+                                     ctx.due[rows], need * rows.size / ctx.n / 2)
 
     def promising(self, j: int) -> bool:
         """Whether item `j` is worth the full search (always, without a screen sample)."""
@@ -151,16 +183,15 @@ def routing_mismatch(ctx: DataContext) -> Iterator[Hits]:
     # item's own routing explains all but fewer than `need` respondents.
     if all(n - int((ctx.due[:, j] == ctx.has_value[:, j]).sum()) < need for j in range(len(ctx.items))):
         return
-    vars_ = context_vars(ctx)
-    by_name = {v.name: v for v in vars_}
+    columns = Columns(ctx)
     sample = sample_rows(n)
-    small = [v.subset(sample) for v in vars_] if sample is not None else None
-    screen = Screen(ctx, vars_, need)
+    small = columns.cut(sample, len(ctx.items))
+    quick = Screen(ctx, small, sample, need)
+    kept = [j for j in range(len(ctx.items)) if quick.promising(j)]
     none = np.array([], dtype=np.int64)
-    for j, name in enumerate(ctx.items):
-        if not screen.promising(j):
-            continue
-        got = compare(ctx, vars_, j, need, small)
+    for j in kept:
+        name = ctx.items[j]
+        got = compare(ctx, columns, j, need, sample, small)
         if got is None:
             continue
         mined, own = got
@@ -174,7 +205,7 @@ def routing_mismatch(ctx: DataContext) -> Iterator[Hits]:
         yield Hits(
             rows=none,
             message=(
-                f"`{name}` is answered as if asked `when {mined.condition.text(by_name)}` "
+                f"`{name}` is answered as if asked `when {mined.condition.text({v: columns.whole(v) for v in mined.condition.reads()})}` "
                 f"({100 * mined.explained / n:.1f} % of respondents fit that), far better than {said} "
                 f"({100 * own / n:.1f} %); check the spec's routing before the data"
             ),
