@@ -6,6 +6,7 @@ import sys
 from pathlib import Path
 
 import click
+from rich.markup import escape
 
 from logiccheck.clean.io import ExportError
 from logiccheck.clean.policy import BIAS_WARNING, CleanPolicy, PolicyError, load_policy
@@ -80,7 +81,7 @@ def clean_command(spec: str, data: str, map_file: str | None, frame: str | None,
     else:
         console.print("  no respondent removed: every disqualification check only flags. " + BIAS_WARNING)
     for note in s["notes"][:-1]:
-        console.print(f"  note: {note}")
+        console.print(f"  note: {escape(note)}")
     for p in run.outputs:
         console.print(f"  wrote {p}")
     sys.exit(EXIT_OK)
