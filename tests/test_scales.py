@@ -333,7 +333,7 @@ def test_clinic_demo_shows_the_misfit_item() -> None:
     assert [m.name for m in q.scales["building"].items if m.reversed] == ["bld_crowded"]
 
 
-@pytest.mark.parametrize("name", ["scale-mixed-answers", "scale-unreachable"])
+@pytest.mark.parametrize("name", ["scale-mixed-answers", "scale-unreachable", "scale-top-covers-all"])
 def test_docs_examples_of_the_scale_spec_checks_behave(name: str) -> None:
     from logiccheck.checks.registry import check_info
 

@@ -32,9 +32,16 @@ _AT_FDCWD = -100
 _RENAME_EXCHANGE = 2
 
 
-def output_names(export: Path) -> list[str]:
-    """The files `clean` writes for this export, in the order they are put in place."""
-    stem, ext = export.stem, export.suffix.lower()
+# The cleaned export's stem when the export came on standard input (`--data -`).
+STDIN_STEM = "standard-input"
+
+
+def output_names(export: Path, ext: str | None = None) -> list[str]:
+    """The files `clean` writes for this export, in the order they are put in place.
+    `ext`: the cleaned export's suffix where the export's name gives none (a pipe: the
+    format read from it)."""
+    stem = STDIN_STEM if str(export) == "-" else export.stem
+    ext = (ext if ext is not None else export.suffix).lower()
     names = [f"{stem}.cleaned{ext}"]
     if ext != ".csv":
         names.append(f"{stem}.cleaned.csv")

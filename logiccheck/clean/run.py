@@ -24,6 +24,7 @@ from logiccheck.quality.config import SOURCES, QualityConfig
 from logiccheck.quality.rates import OutcomeCounts, dispositions_to_counts, outcome_rates
 from logiccheck.quality.repair import Repairer
 from logiccheck.report.data_csv import write_findings_csv
+from logiccheck.safety.streams import is_stream, spool
 
 MAX_HINTS = 200  # repair hints written to the summary (the solver runs once per failing respondent)
 
@@ -90,7 +91,7 @@ def _weights_after_policy(q: Questionnaire, result: PipelineResult, kept: np.nda
 
 def clean_export(
     spec: Questionnaire | Loaded,
-    export: Path,
+    export: Path | str,
     out: Path,
     policy: CleanPolicy | None = None,
     config: QualityConfig | None = None,
@@ -102,11 +103,18 @@ def clean_export(
 ) -> CleanRun:
     """Run the pipeline on `export` (the same reader, route state, findings and
     dispositions as `validate`) and apply `policy` to the very cells it judged.
+    `export` may be "-" (standard input) or a named pipe: it is copied once, read as CSV
+    when its name gives no format, and the cleaned export takes the format read
+    (`standard-input.cleaned.csv`, or `.tsv` when tab-delimited).
     `config` overrides the configuration's [quality] table; `mapping` its [data] table."""
     export = Path(export)
     policy = policy or CleanPolicy()
     q = spec.questionnaire if isinstance(spec, Loaded) else spec
-    fmt = export_format(export)
+    # A pipe can be read once: the pipeline and the input hash both read one copy.
+    piped = is_stream(export)
+    source = spool(export) if piped else export
+    named = not piped or bool(export.suffix)  # "-" has none
+    fmt = export_format(export) if named else None
     opts = options or RunOptions()
     if mapping is not None:
         opts.mapping = mapping
@@ -114,7 +122,11 @@ def clean_export(
         opts.quality = config
     if sample_frame is not None:
         opts.frame = sample_frame
-    result = run_pipeline(q, export, opts)
+    result = run_pipeline(q, source, opts)
+    if piped:
+        result.source = str(export)
+    if fmt is None:  # no name to go by: the format the reader found
+        fmt = "tsv" if result.delimiter == "\t" else "csv"
     quality = result.quality_config or QualityConfig()
     if policy.keep_dispositions is not None:
         known = {"complete", "partial", "break-off", *(e.name for e in q.entries if e.kind == "stop")}
@@ -133,7 +145,7 @@ def clean_export(
             "Check [clean] respondents and keep_dispositions"
         )
 
-    names = output_names(export)
+    names = output_names(export, None if named else f".{fmt}")
     stops = [e.name for e in q.entries if e.kind == "stop"]
     disp_counts = dict(result.dispositions)
     if sample_outcomes is not None:
@@ -148,7 +160,7 @@ def clean_export(
         "tool": "logiccheck",
         "version": __version__,
         "spec": q.file,
-        "input": {"file": str(export), "sha256": file_hash(export), "respondents": result.respondents, "format": fmt},
+        "input": {"file": str(export), "sha256": file_hash(source), "respondents": result.respondents, "format": fmt},
         "output": {"respondents": len(outcome.cleaned), "removed": sum(outcome.removed.values()),
                    "cells_blanked": sum(outcome.blanked.values())},
         "findings": by_check,

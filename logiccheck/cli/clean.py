@@ -6,6 +6,7 @@ import sys
 from pathlib import Path
 
 import click
+from rich.markup import escape
 
 from logiccheck.clean.io import ExportError
 from logiccheck.clean.policy import BIAS_WARNING, CleanPolicy, PolicyError, load_policy
@@ -55,7 +56,8 @@ def clean_command(spec: str, data: str, map_file: str | None, frame: str | None,
         fail(str(err))
     console = make_console(color)
     s = run.summary
-    console.print(f"[bold]logiccheck clean[/bold] {data}: {s['input']['respondents']} respondents in, "
+    shown = "standard input" if data == "-" else data
+    console.print(f"[bold]logiccheck clean[/bold] {shown}: {s['input']['respondents']} respondents in, "
                   f"{s['output']['respondents']} out; {s['output']['cells_blanked']} cells blanked")
     for check, count in s["blanked"].items():
         console.print(f"  blanked  {check:<20} {count}")
@@ -79,7 +81,7 @@ def clean_command(spec: str, data: str, map_file: str | None, frame: str | None,
     else:
         console.print("  no respondent removed: every disqualification check only flags. " + BIAS_WARNING)
     for note in s["notes"][:-1]:
-        console.print(f"  note: {note}")
+        console.print(f"  note: {escape(note)}")
     for p in run.outputs:
         console.print(f"  wrote {p}")
     sys.exit(EXIT_OK)

@@ -129,18 +129,22 @@ class Screen:
     """The vectorised screen (`draft/screen.py`) on a small random sample: rules out the
     items no simple condition helps before the full search."""
 
-    def __init__(self, ctx: DataContext, columns: Columns, need: float) -> None:
+    def __init__(self, ctx: DataContext, searched: list[Var], sample: np.ndarray | None, need: float) -> None:
+        """`searched`: every item's column cut to `sample` (None: whole); the screen takes
+        SCREEN_ROWS of those rows, so no column is typed again for it."""
         self.keep: np.ndarray | None = None
-        if ctx.n <= 2 * SCREEN_ROWS:
+        if ctx.n <= 2 * SCREEN_ROWS or not ctx.items:
             return
+        size = ctx.n if sample is None else sample.size
         rng = np.random.default_rng(1)
-        rows = np.sort(rng.choice(ctx.n, size=SCREEN_ROWS, replace=False))
-        alive_before(ctx, ctx.items[0]) if ctx.items else None  # fills the memo
-        stop_at = np.asarray(ctx.memo["draft.stop_at"])[rows] if ctx.items else np.zeros(rows.size, np.int64)
+        at = np.sort(rng.choice(size, size=min(SCREEN_ROWS, size), replace=False))
+        rows = at if sample is None else sample[at]
+        alive_before(ctx, ctx.items[0])  # fills the memo
+        stop_at = np.asarray(ctx.memo["draft.stop_at"])[rows]
         index = np.array([ctx.q.symbols[name].index for name in ctx.items], dtype=np.int64)
         alive = stop_at[:, None] > index[None, :]
-        self.keep = screen.promising(columns.cut(rows, len(ctx.items)), ctx.has_value[rows], alive,
-                                     ctx.due[rows], need * SCREEN_ROWS / ctx.n / 2)
+        self.keep = screen.promising([v.subset(at) for v in searched], ctx.has_value[rows], alive,
+                                     ctx.due[rows], need * rows.size / ctx.n / 2)
 
     def promising(self, j: int) -> bool:
         """Whether item `j` is worth the full search (always, without a screen sample)."""
@@ -180,12 +184,10 @@ def routing_mismatch(ctx: DataContext) -> Iterator[Hits]:
     if all(n - int((ctx.due[:, j] == ctx.has_value[:, j]).sum()) < need for j in range(len(ctx.items))):
         return
     columns = Columns(ctx)
-    screen = Screen(ctx, columns, need)
-    kept = [j for j in range(len(ctx.items)) if screen.promising(j)]
-    if not kept:
-        return
     sample = sample_rows(n)
-    small = columns.cut(sample, max(kept))
+    small = columns.cut(sample, len(ctx.items))
+    quick = Screen(ctx, small, sample, need)
+    kept = [j for j in range(len(ctx.items)) if quick.promising(j)]
     none = np.array([], dtype=np.int64)
     for j in kept:
         name = ctx.items[j]

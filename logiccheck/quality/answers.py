@@ -30,9 +30,16 @@ class Answers:
 
 
 def _codes(values: np.ndarray, present: np.ndarray) -> tuple[np.ndarray, int]:
-    """1..K for the distinct values where present, 0 elsewhere."""
+    """1..K for the distinct values where present, 0 elsewhere (K: the largest code)."""
     out = np.zeros(values.shape[0], np.int64)
     if present.any():
+        got = values[present]
+        lo, hi = float(got.min()), float(got.max())
+        if hi - lo < 30_000 and bool((got == np.round(got)).all()):
+            # Whole numbers in a narrow range (codes, counts): the value itself, shifted,
+            # is already a distinct small code; no hashing needed.
+            out[present] = (got - lo).astype(np.int64) + 1
+            return out, int(hi - lo) + 1
         # Hash-based (no sort); which number each answer gets does not matter.
         labels, distinct = pd.factorize(values[present])
         out[present] = labels + 1

@@ -139,7 +139,8 @@ def near_duplicate(ctx: DataContext) -> Iterator[Hits]:
     answers = answer_codes(ctx)
     # Items asked of the same respondents are blocked together (speed only).
     groups = column_labels(ctx.due[:, [ctx.col(name) for name in answers.items]])
-    budget = dc.near_search_budget * ctx.n if dc.near_search_budget else None
+    # Small exports are always searched completely: the floor costs about half a second.
+    budget = max(dc.near_search_budget * ctx.n, NEAR_MIN_BUDGET) if dc.near_search_budget else None
     coverage = Coverage(budget=budget)
     pairs = near_pairs(answers.codes, dc.near_threshold, dc.near_min_items, groups, coverage)
     if not coverage.complete:
@@ -161,6 +162,10 @@ def near_duplicate(ctx: DataContext) -> Iterator[Hits]:
     ]
     yield Hits(rows=rows, message=messages, values=[f"{best.score[r]:.4f}" for r in rows.tolist()])
 
+
+# The budget never falls below this many candidate pairs, so an export of a few thousand
+# respondents is searched completely whatever its answers.
+NEAR_MIN_BUDGET = 1_000_000
 
 # Respondents whose maximum percent match is computed directly, against everyone, when
 # the exact search did not finish within its budget (the estimate is said to be one).

@@ -3,7 +3,7 @@ entry point; the `[quality]` table of `logiccheck.toml` is handed to it as is.""
 
 from __future__ import annotations
 
-from typing import Any, Literal
+from typing import Any
 
 from pydantic import BaseModel, ConfigDict, Field, field_validator
 
@@ -48,13 +48,6 @@ class DuplicateConfig(_Strict):
     # note, and the maximum percent match is then estimated on a sample. 0 = no limit.
     # Measured on this project's benchmarks, no outside source.
     near_search_budget: int = Field(default=10, ge=0)
-    # The four settings below are read only by the older `quality.run.run_quality` path
-    # (pairs over the items asked of either respondent, with a size budget); the
-    # `near-duplicate` check ignores them. They go when that path is retired.
-    near_basis: Literal["asked", "all"] = "asked"
-    chunk_size: int = Field(default=2000, ge=1)
-    near_max_respondents: int = Field(default=50_000, ge=2)
-    near_max_work: float = Field(default=1.5e12, gt=0)
 
 
 class CarelessConfig(_Strict):
@@ -115,7 +108,6 @@ SOURCES: dict[str, str] = {
     "completeness.partial_from": "AAPOR Standard Definitions, example threshold (from memory)",
     "duplicates.near_threshold": "Kuriakose & Robbins (2016)",
     "duplicates.near_min_items": "common practice, no source",
-    "duplicates.near_max_work": "older run_quality path only: a budget measured on this project's benchmark",
     "duplicates.exact_min_answered": "common practice, no source",
     "duplicates.near_search_budget": "measured on this project's benchmarks, no outside source",
     "careless.pattern_max_period": "common practice, no source",

@@ -40,7 +40,13 @@ def folder_outputs(command: str) -> Callable[[Callable[[dict[str, Any]], list[st
 def _clean_outputs(params: dict[str, Any]) -> list[str]:
     from logiccheck.clean.outset import output_names
 
-    return output_names(Path(params["data"])) if params.get("data") else []
+    if not params.get("data"):
+        return []
+    data = Path(params["data"])
+    if str(data) == "-" or not data.suffix:
+        # A pipe's cleaned export is named by the delimiter read from it: either may be written.
+        return list(dict.fromkeys(output_names(data, ".csv") + output_names(data, ".tsv")))
+    return output_names(data)
 
 
 @folder_outputs("validate")

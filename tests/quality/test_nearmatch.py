@@ -9,6 +9,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from logiccheck.quality import checks as quality_checks
 from logiccheck.quality import nearmatch as nm
 from logiccheck.quality.config import QualityConfig
 from tests.quality.context import build_context, quality_blocks
@@ -168,7 +169,21 @@ def test_a_budgeted_search_returns_only_true_pairs_and_all_of_them_when_complete
         assert coverage.skipped and coverage.skipped_pairs > 0
 
 
-def test_two_option_answers_stop_at_the_budget_with_a_note_and_a_sample_estimate() -> None:
+def test_small_exports_are_searched_completely_whatever_the_budget() -> None:
+    # The floor of the budget: a few hundred respondents never get a partial search.
+    items = "\n".join(f"q{i}: single yn \"Q{i}?\"" for i in range(40))
+    spec = f'survey s "S"\ncodes yn\n  yes = 1 "Yes"\n  no = 2 "No"\n{items}\n'
+    values = np.random.default_rng(5).choice(["1", "2"], size=(300, 40))
+    export = pd.DataFrame(values, columns=[f"q{i}" for i in range(40)])
+    export.insert(0, "id", [f"r{i}" for i in range(300)])
+    ctx = build_context(spec, export, QualityConfig.model_validate({"duplicates": {"near_search_budget": 1}}))
+    quality_blocks(ctx)
+    assert ctx.memo["quality.near_coverage"].complete
+    assert not [x for x in ctx.notes if x.startswith("near-duplicate:")]
+
+
+def test_two_option_answers_stop_at_the_budget_with_a_note_and_a_sample_estimate(
+        monkeypatch: pytest.MonkeyPatch) -> None:
     # Forty yes/no items answered at random: chance agreement makes a candidate of almost
     # every pair, so a budget of one candidate per respondent cannot cover the search.
     items = "\n".join(f"q{i}: single yn \"Q{i}?\"" for i in range(40))
@@ -180,6 +195,7 @@ def test_two_option_answers_stop_at_the_budget_with_a_note_and_a_sample_estimate
     export = pd.DataFrame(values, columns=[f"q{i}" for i in range(40)])
     export.insert(0, "id", [f"r{i}" for i in range(n)])
     config = QualityConfig.model_validate({"duplicates": {"near_search_budget": 1}})
+    monkeypatch.setattr(quality_checks, "NEAR_MIN_BUDGET", 0)  # as if the export were large
     ctx = build_context(spec, export, config)
     quality_blocks(ctx)
     note = next(x for x in ctx.notes if x.startswith("near-duplicate:"))

@@ -14,11 +14,12 @@ from logiccheck.data import validate
 from logiccheck.data.evaluate import evaluate_columns
 from logiccheck.data.readers import read_cells as read_export
 from logiccheck.loader import load_file, load_text
+from logiccheck.pipeline import run_pipeline
 from logiccheck.quality.bridge import route_state, state_from_validation
 from logiccheck.quality.completeness import parse_rule
 from logiccheck.quality.route import RouteError
-from logiccheck.quality.run import run_quality
 from tests.conftest import SPECS
+from tests.quality.context import QUALITY, build_context, quality_blocks
 from tests.quality.planted import SPEC, build
 
 
@@ -46,16 +47,20 @@ def test_state_carries_the_validation(tmp_path: Path, case: int) -> None:
     assert stopped == {(str(i), s) for i, s in zip(result.ids, result.stop, strict=True) if s}
 
 
-def test_quality_on_a_validation_result_matches(tmp_path: Path) -> None:
+def test_pipeline_quality_matches_a_standalone_route_state(tmp_path: Path) -> None:
     q, path = cases(tmp_path)[0]
     data = read_export(path)
-    theirs = validate(q, path, keep_cells=True)
-    via_validation = run_quality(q, data, state=state_from_validation(q, theirs))
-    standalone = run_quality(q, data)
-    assert [(f.check, f.row) for f in via_validation.findings] == [(f.check, f.row) for f in standalone.findings]
-    np.testing.assert_array_equal(via_validation.state.nonresponse, standalone.state.nonresponse)
+    result = run_pipeline(q, path)
+    standalone = route_state(q, data)
+    assert result.state is not None and result.state.ids == standalone.ids
+    for mask in ("due", "has_value", "valid", "nonresponse"):
+        np.testing.assert_array_equal(getattr(result.state, mask), getattr(standalone, mask), err_msg=mask)
+    # The same check units on a context built from a separate validation agree.
+    ours = [(f.check, f.row) for f in result.findings if f.check in QUALITY]
+    theirs = [(f.check, f.row) for b in quality_blocks(build_context(q, data)) for f in b.records()]
+    assert sorted(ours, key=str) == sorted(theirs, key=str)
     # One record type: quality findings carry the data stage's 1-based rows.
-    first = via_validation.findings[0]
+    first = next(f for f in result.findings if f.check in QUALITY)
     assert first.row is not None and first.row >= 1 and first.to_json()["check"] == first.check
 
 

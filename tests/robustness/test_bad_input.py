@@ -196,6 +196,41 @@ def test_standard_input_and_a_named_pipe(tmp_path: Path) -> None:
     assert ran.returncode == whole.returncode and ran.stdout == whole.stdout
 
 
+def test_clean_reads_standard_input_and_a_named_pipe(tmp_path: Path) -> None:
+    import json
+
+    spec, data = project(tmp_path)
+    whole = cli_process("clean", str(spec), "--data", str(data), "--out", str(tmp_path / "file"))
+    assert whole.returncode == 0, whole.stderr
+    piped = cli_process("clean", str(spec), "--data", "-", "--out", str(tmp_path / "stdin"), stdin=data.read_bytes())
+    assert piped.returncode == 0, piped.stderr
+    out = tmp_path / "stdin"
+    # No file name to go by: the cleaned export is named for standard input, in the format read.
+    assert sorted(p.name for p in out.iterdir()) == [
+        "audit.csv", "findings.csv", "standard-input.cleaned.csv", "summary.json"]
+    assert (out / "standard-input.cleaned.csv").read_bytes() == (tmp_path / "file" / "ferry.cleaned.csv").read_bytes()
+    for name in ("audit.csv", "findings.csv"):
+        assert (out / name).read_bytes() == (tmp_path / "file" / name).read_bytes(), name
+    got = json.loads((out / "summary.json").read_text(encoding="utf-8"))["input"]
+    was = json.loads((tmp_path / "file" / "summary.json").read_text(encoding="utf-8"))["input"]
+    assert got == {**was, "file": "-"}  # the same bytes hashed, the same format
+    # Tab-delimited on standard input: written back tab-delimited as .tsv (and the .csv copy).
+    tabbed = data.read_text(encoding="utf-8").replace(",", "\t").encode("utf-8")
+    tab = cli_process("clean", str(spec), "--data", "-", "--out", str(tmp_path / "tab"), stdin=tabbed)
+    assert tab.returncode == 0, tab.stderr
+    assert (tmp_path / "tab" / "standard-input.cleaned.tsv").read_bytes() == (out / "standard-input.cleaned.csv").read_bytes().replace(b",", b"\t")
+    assert (tmp_path / "tab" / "standard-input.cleaned.csv").is_file()
+    # A named pipe can be read once: the run and the input hash share one copy.
+    fifo = tmp_path / "pipe.csv"
+    os.mkfifo(fifo)
+    writer = threading.Thread(target=lambda: fifo.write_bytes(data.read_bytes()))
+    writer.start()
+    ran = cli_process("clean", str(spec), "--data", str(fifo), "--out", str(tmp_path / "fifo"), timeout=120)
+    writer.join(timeout=5)
+    assert ran.returncode == 0, ran.stderr
+    assert (tmp_path / "fifo" / "pipe.cleaned.csv").read_bytes() == (out / "standard-input.cleaned.csv").read_bytes()
+
+
 def test_utf16_with_byte_order_mark(tmp_path: Path) -> None:
     spec, data = project(tmp_path)
     wide = tmp_path / "wide.csv"

@@ -37,3 +37,36 @@ def scale_mixed_answers(ctx: LintContext) -> Iterable[Diagnostic]:
         for p in problems:
             yield ctx.diag("scale-mixed-answers", p.span, f"scale `{scale.name}`: {p.message}", item=p.item,
                            related=p.related)
+
+
+@register(
+    "scale-top-covers-all",
+    severity="warning",
+    stage="spec",
+    summary="A scale's `score top K` counts every answer option, so every respondent scores 100 %.",
+    what="A `scale` with `score top K` where K is at least the number of options its items "
+    "share (the codes of their answer list, or every whole number of their range).",
+    why="Top-box scoring counts the answers among the top K options; when those are all the "
+    "options, every answer counts and each scored respondent gets 100 %, so the score tells "
+    "nothing. K was probably meant to be smaller (often 1 or 2).",
+    bad=AGREE5 + 'staff_kind: single agree5 "Staff were kind."\nstaff_fast: single agree5 "Staff were fast."\n'
+    'scale staff "Staff" score top 5\n  staff_kind\n  staff_fast',
+    good=AGREE5 + 'staff_kind: single agree5 "Staff were kind."\nstaff_fast: single agree5 "Staff were fast."\n'
+    'scale staff "Staff" score top 2\n  staff_kind\n  staff_fast',
+)
+def scale_top_covers_all(ctx: LintContext) -> Iterable[Diagnostic]:
+    for scale in ctx.q.scales.values():
+        if scale.top is None or scale.top_span is None:
+            continue
+        shared, _ = scale_answers(ctx.q, scale)
+        if shared is None:
+            continue  # scale-mixed-answers (or unknown-name) speaks for the items
+        options = shared.steps + 1
+        if scale.top < options:
+            continue
+        yield ctx.diag(
+            "scale-top-covers-all", scale.top_span,
+            f"scale `{scale.name}`: `score top {scale.top}` counts all {options} options of "
+            f"{shared.describe()}, so every respondent scored gets 100 %; use a number below {options}",
+            item=scale.name,
+        )
