@@ -320,7 +320,9 @@ def candidate_pairs(
     cheapest first. A part whose cost would exceed what is left is skipped and
     recorded."""
     cov = coverage if coverage is not None else Coverage()
-    blocks = blocks_for(codes[rows], size, groups)
+    # Without group labels, columns are labelled by who answered them (among `rows`); with
+    # them, no copy of the rows is made.
+    blocks = blocks_for(codes if groups is not None else codes[rows], size, groups)
     for cols in blocks:
         sub = codes[np.ix_(rows, cols)]
         live = (sub != 0).any(axis=1)
@@ -535,7 +537,7 @@ def exact_groups(codes: np.ndarray, min_answered: int) -> list[np.ndarray]:
     then an exact check inside each group."""
     rows = np.flatnonzero((codes != 0).sum(axis=1) >= max(1, min_answered))
     out: list[np.ndarray] = []
-    for group in groups_of(hash_rows(codes[rows]), rows):
+    for group in groups_of(hash_rows(codes)[rows], rows):  # no copy of the rows
         same = (codes[group] == codes[group[0]]).all(axis=1)
         if same.all():
             out.append(group)
