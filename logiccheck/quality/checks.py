@@ -29,9 +29,9 @@ from logiccheck.quality.duplicates import group_messages, id_groups
 from logiccheck.quality.nearmatch import (
     Coverage,
     Pairs,
+    against_all,
     best_partners,
     column_labels,
-    compare_pairs,
     exact_groups,
     near_pairs,
 )
@@ -184,7 +184,7 @@ def _with_sample(ctx: DataContext, codes: np.ndarray, pairs: Pairs, coverage: Co
     extra: list[tuple[np.ndarray, ...]] = []
     for r in sample.tolist():
         others = eligible[eligible != r]
-        compared, matched = compare_pairs(codes, np.full(others.size, r), others)
+        compared, matched = (x[others] for x in against_all(codes, r))
         ok = compared >= dc.near_min_items
         if not ok.any():
             continue

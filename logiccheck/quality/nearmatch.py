@@ -514,16 +514,29 @@ def best_partners(pairs: Pairs, n: int) -> Best:
     return Best(partner, score, compared)
 
 
+def against_all(codes: np.ndarray, r: int, step: int = 65_536) -> tuple[np.ndarray, np.ndarray]:
+    """Compared and matching item counts of row `r` against every row (itself included),
+    on the items `r` answered only (the others cannot be compared), in slices of rows so
+    the temporaries stay small."""
+    row = codes[r]
+    cols = np.flatnonzero(row != 0)
+    mine = row[cols]
+    compared = np.empty(codes.shape[0], np.int64)
+    matched = np.empty(codes.shape[0], np.int64)
+    for s in range(0, codes.shape[0], step):
+        part = codes[s : s + step][:, cols]
+        compared[s : s + step] = np.count_nonzero(part, axis=1)
+        matched[s : s + step] = np.count_nonzero(part == mine, axis=1)  # mine has no blanks
+    return compared, matched
+
+
 def max_match_of(codes: np.ndarray, rows: np.ndarray, min_items: int) -> np.ndarray:
     """The maximum percent match of the given rows against every other row, by direct
     comparison (cost: len(rows) × respondents × items): the distribution of the
     statistic estimated on a sample. NaN where no pair reaches `min_items`."""
     out = np.full(rows.size, np.nan)
-    answered = codes != 0
     for i, r in enumerate(rows.tolist()):
-        both = answered & answered[r]
-        compared = both.sum(axis=1)
-        matched = (both & (codes == codes[r])).sum(axis=1)
+        compared, matched = against_all(codes, r)
         compared[r] = 0
         ok = compared >= min_items
         if ok.any():
