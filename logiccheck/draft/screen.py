@@ -34,16 +34,38 @@ def _levels(v: Var) -> tuple[np.ndarray, int, int, str] | None:
     return None
 
 
+BATCH_SLOTS = 4096
+
+
+def _best_of(p: np.ndarray, n: np.ndarray, m: int, k: int, kind: str, options: int) -> np.ndarray:
+    """Per item, the fewest errors of a set-of-codes or threshold literal on one column
+    from its answered (`p`) and blank (`n`) counts per value slot (slot m: no value)."""
+    best = np.full(p.shape[0], np.inf)
+    if kind == "coded":
+        # A set of codes: each value goes to the side with more rows (ties: blank).
+        take = p[:, :m] > n[:, :m]
+        err = np.minimum(p[:, :m], n[:, :m]).sum(axis=1) + p[:, m]
+        best = np.where(take[:, :options].any(axis=1), err, best)
+    if k:
+        none_pos = p[:, k:].sum(axis=1)
+        cp, cn = np.cumsum(p[:, :k], axis=1), np.cumsum(n[:, :k], axis=1)
+        below_p, below_n = cp[:, :-1], cn[:, :-1]
+        ge = below_p + (cn[:, -1:] - below_n)
+        lt = (cp[:, -1:] - below_p) + below_n
+        best = np.minimum(best, np.minimum(ge.min(axis=1), lt.min(axis=1)) + none_pos)
+    return best
+
+
 def single_errors(vars_: list[Var], answered: np.ndarray, alive: np.ndarray) -> np.ndarray:
     """items × columns: the fewest errors of one literal on that column predicting the
     item's answered rows among its alive rows (inf: the column offers no literal).
     `answered`, `alive`: rows × items."""
     rows, items = answered.shape
-    a = (answered & alive).astype(np.float64)
-    b = (~answered & alive).astype(np.float64)
+    # float32 holds every count exactly (the screen sample is a few thousand rows).
+    a = (answered & alive).astype(np.float32)
+    b = (~answered & alive).astype(np.float32)
     out = np.full((items, len(vars_)), np.inf)
     layouts: list[tuple[int, int, np.ndarray, int, int, str]] = []
-    cols: list[np.ndarray] = []
     offset = 0
     for c, v in enumerate(vars_):
         got = _levels(v)
@@ -51,30 +73,27 @@ def single_errors(vars_: list[Var], answered: np.ndarray, alive: np.ndarray) -> 
             continue
         idx, m, k, kind = got
         layouts.append((c, offset, idx, m, k, kind))
-        cols.append(offset + idx)
         offset += m + 1
-    if layouts:
-        col_index = np.concatenate(cols)
-        row_index = np.tile(np.arange(rows), len(layouts))
-        onehot = sparse.csc_matrix((np.ones(col_index.size), (row_index, col_index)), shape=(rows, offset))
+    # Columns in batches of at most BATCH_SLOTS value slots: the counts of one batch are
+    # items × slots, so a thousand number columns of 500 values each never sit in memory
+    # at once (they were 2 GB at 1,200 items).
+    start = 0
+    while start < len(layouts):
+        stop, slots = start, 0
+        while stop < len(layouts) and (stop == start or slots + layouts[stop][3] + 1 <= BATCH_SLOTS):
+            slots += layouts[stop][3] + 1
+            stop += 1
+        batch = layouts[start:stop]
+        base = batch[0][1]
+        col_index = np.concatenate([o - base + idx for _, o, idx, *_ in batch])
+        row_index = np.tile(np.arange(rows), len(batch))
+        onehot = sparse.csc_matrix((np.ones(col_index.size, np.float32), (row_index, col_index)), shape=(rows, slots))
         pos = np.asarray((onehot.T @ a).T)  # items × slots: answered rows per value
         neg = np.asarray((onehot.T @ b).T)
-        for c, o, _idx, m, k, kind in layouts:
-            p, n = pos[:, o : o + m + 1], neg[:, o : o + m + 1]
-            best = np.full(items, np.inf)
-            if kind == "coded":
-                # A set of codes: each value goes to the side with more rows (ties: blank).
-                take = p[:, :m] > n[:, :m]
-                err = np.minimum(p[:, :m], n[:, :m]).sum(axis=1) + p[:, m]
-                best = np.where(take[:, : len(vars_[c].options)].any(axis=1), err, best)
-            if k:
-                none_pos = p[:, k:].sum(axis=1)
-                cp, cn = np.cumsum(p[:, :k], axis=1), np.cumsum(n[:, :k], axis=1)
-                below_p, below_n = cp[:, :-1], cn[:, :-1]
-                ge = below_p + (cn[:, -1:] - below_n)
-                lt = (cp[:, -1:] - below_p) + below_n
-                best = np.minimum(best, np.minimum(ge.min(axis=1), lt.min(axis=1)) + none_pos)
-            out[:, c] = best
+        for c, o, _idx, m, k, kind in batch:
+            p, n = pos[:, o - base : o - base + m + 1], neg[:, o - base : o - base + m + 1]
+            out[:, c] = _best_of(p, n, m, k, kind, len(vars_[c].options))
+        start = stop
     for c, v in enumerate(vars_):
         if v.kind == "multi" and v.chosen is not None and v.options:
             chosen = v.chosen.astype(np.float64)
