@@ -210,3 +210,17 @@ def test_analyses_reach_validate_json_and_the_cleaned_export(tmp_path: Path) -> 
         assert (cleaned["probe_flag"] == "1.0").sum() == result.dispositions["complete"]
     finally:
         analyses._ANALYSES.pop("probe", None)
+
+
+def test_values_typed_for_a_sample_equal_the_whole_columns_cut() -> None:
+    # Searches on a sample type only the sample's cells; they must read the same values.
+    import numpy as np
+
+    result = run_pipeline(load_file(SPECS / "bikeshare.qlc"), SPECS / "bikeshare_export.csv")
+    ctx = result.context
+    rows = np.sort(np.random.default_rng(2).choice(ctx.n, size=ctx.n // 3, replace=False))
+    sampled = ctx.value_of_rows(rows)
+    names = [*ctx.items, *[f"{e.name}_{o.value}" for e in ctx.q.entries if e.is_item and e.stmt.type.kind == "multi"
+                           for o in (ctx.q.item_codes(e.stmt).options if ctx.q.item_codes(e.stmt) else [])]]
+    for name in names:
+        np.testing.assert_array_equal(sampled(name), np.asarray(ctx.value_of(name))[rows], err_msg=name)

@@ -44,7 +44,16 @@ class DataContext:
     # Results computed once and shared between checks and analyses of one run (e.g. a
     # scale's statistics feed both `low-reliability` and the "scales" section).
     memo: dict[str, Any] = field(default_factory=dict)
+    # `value_of` for some rows only, typing just those cells (a search on a sample then
+    # costs the sample, not the export); None: cut `value_of`'s whole columns instead.
+    values_at: Callable[[np.ndarray], Callable[[str], np.ndarray]] | None = None
     _index: dict[str, int] | None = field(default=None, repr=False)
+
+    def value_of_rows(self, rows: np.ndarray) -> Callable[[str], np.ndarray]:
+        """`value_of` restricted to `rows` (sorted row numbers)."""
+        if self.values_at is not None:
+            return self.values_at(rows)
+        return lambda name: np.asarray(self.value_of(name))[rows]
 
     @property
     def n(self) -> int:

@@ -3,7 +3,7 @@ spec's own, which says the spec is wrong rather than thousands of respondents.""
 
 from __future__ import annotations
 
-from collections.abc import Iterator
+from collections.abc import Callable, Iterator
 
 import numpy as np
 
@@ -21,37 +21,36 @@ MISMATCH_ROWS = 10
 MISMATCH_ERRORS = 0.5
 
 
-def item_var(ctx: DataContext, j: int, rows: np.ndarray | None = None) -> Var:
-    """Item `j` as the miner sees it, cut to `rows` where given. A value counts only where
-    it was due and valid, as the routing reads it (an answer off the route opens nothing
-    later)."""
+def item_var(ctx: DataContext, j: int, rows: np.ndarray | None = None,
+             value_of: Callable[[str], np.ndarray] | None = None) -> Var:
+    """Item `j` as the miner sees it, cut to `rows` where given (`value_of`: the values
+    of those rows only, typed for them alone). A value counts only where it was due and
+    valid, as the routing reads it (an answer off the route opens nothing later)."""
     q = ctx.q
     name = ctx.items[j]
     stmt = q.symbols[name].stmt
-    usable = ctx.due[:, j] & ctx.valid[:, j]
+    at = slice(None) if rows is None else rows
+    usable = ctx.due[at, j] & ctx.valid[at, j]
+    nonresponse = ctx.nonresponse[at, j] & usable
+    values = value_of or (ctx.value_of if rows is None else ctx.value_of_rows(rows))
     kind = stmt.type.kind
     codes = q.item_codes(stmt)
-
-    def cut(x: np.ndarray) -> np.ndarray:
-        return x if rows is None else x[rows]
-
     if kind == "single" and codes is not None:
-        value = np.where(usable, ctx.value_of(name), np.nan)
+        value = np.where(usable, values(name), np.nan)
         opts = sorted(o.value for o in codes.options)
         nr = [o for o in q.nonresponse] if q.allows_nonresponse(stmt) else []
         labels = {o.value: o.label for o in [*codes.options, *nr]}
-        return Var(name, "coded", cut(usable), cut(value), cut(ctx.nonresponse[:, j] & usable), options=opts,
+        return Var(name, "coded", usable, value, nonresponse, options=opts,
                    nr_codes=[o.value for o in nr], labels=labels, position=j)
     if kind in ("number", "decimal"):
-        value = np.where(usable, ctx.value_of(name), np.nan)
-        return Var(name, "number", cut(usable), cut(value), cut(ctx.nonresponse[:, j] & usable),
-                   integer=kind == "number", position=j)
+        value = np.where(usable, values(name), np.nan)
+        return Var(name, "number", usable, value, nonresponse, integer=kind == "number", position=j)
     if kind == "multi" and codes is not None:
         opts = sorted(o.value for o in codes.options)
-        chosen = np.column_stack([cut(usable & (ctx.value_of(f"{name}_{v}") == 1)) for v in opts]) if opts else None
-        return Var(name, "multi", cut(usable), chosen=chosen, options=opts,
+        chosen = np.column_stack([usable & (values(f"{name}_{v}") == 1) for v in opts]) if opts else None
+        return Var(name, "multi", usable, chosen=chosen, options=opts,
                    labels={o.value: o.label for o in codes.options}, position=j)
-    return Var(name, "text", cut(usable), position=j)
+    return Var(name, "text", usable, position=j)
 
 
 class Columns:
@@ -68,7 +67,8 @@ class Columns:
         """Items 0..upto-1, cut to `rows` (None: whole, and kept)."""
         if rows is None:
             return [self.whole(self.ctx.items[j]) for j in range(upto)]
-        return [item_var(self.ctx, j, rows) for j in range(upto)]
+        values = self.ctx.value_of_rows(rows)  # the sample's cells alone are typed
+        return [item_var(self.ctx, j, rows, values) for j in range(upto)]
 
     def whole(self, name: str) -> Var:
         if name not in self._whole:

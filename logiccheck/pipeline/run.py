@@ -383,4 +383,5 @@ def _context(
         mapping=mapping,
         sample_frame=result.sample_frame,
         options={"settings": config},
+        values_at=lambda rows: _typed_values(raw.take(pa.array(rows, pa.int64())), validator, int(rows.size)),
     )
