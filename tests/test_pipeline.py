@@ -224,3 +224,41 @@ def test_values_typed_for_a_sample_equal_the_whole_columns_cut() -> None:
                            for o in (ctx.q.item_codes(e.stmt).options if ctx.q.item_codes(e.stmt) else [])]]
     for name in names:
         np.testing.assert_array_equal(sampled(name), np.asarray(ctx.value_of(name))[rows], err_msg=name)
+
+
+def test_values_for_a_sample_read_chunks_with_dictionaries_of_their_own(tmp_path: Path) -> None:
+    # Chunks of 100 rows keep their own narrow dictionaries; 500 distinct numbers in all
+    # cannot share one: the sample must be taken chunk by chunk.
+    import numpy as np
+
+    spec = tmp_path / "s.qlc"
+    spec.write_text('survey s "S"\nq1: number 0..500 "How many?"\nq2: number 0..500 "And now?"\n')
+    rng = np.random.default_rng(4)
+    export = pd.DataFrame({"id": [f"r{i}" for i in range(3000)], "q1": rng.integers(0, 501, 3000).astype(str),
+                           "q2": rng.integers(0, 501, 3000).astype(str)})
+    export.loc[5, "q1"] = "7a"  # a stray text: the column is kept as text (dictionary-encoded)
+    export.loc[2900, "q2"] = "n/a"
+    path = tmp_path / "e.csv"
+    export.to_csv(path, index=False)
+    ctx = run_pipeline(load_file(spec), path, RunOptions(chunk_rows=100)).context
+    rows = np.sort(rng.choice(3000, size=700, replace=False))
+    want = export[["q1", "q2"]].apply(pd.to_numeric, errors="coerce")
+    for name in ("q1", "q2"):
+        np.testing.assert_array_equal(ctx.value_of_rows(rows)(name), want[name].to_numpy(dtype=float)[rows])
+
+
+def test_rows_are_taken_from_chunks_whose_dictionaries_cannot_be_unified() -> None:
+    # Two chunks of one text column, each with its own int8-indexed dictionary of 100
+    # texts: one `take` over both must unify 200 texts into an int8 index and fails.
+    import numpy as np
+    import pyarrow as pa
+
+    from logiccheck.pipeline.run import take_rows
+
+    kind = pa.dictionary(pa.int8(), pa.string())
+    chunks = [pa.array([str(v) for v in range(k, k + 100)]).dictionary_encode().cast(kind) for k in (0, 100)]
+    table = pa.Table.from_batches([pa.record_batch([c], names=["q"]) for c in chunks])
+    rows = np.array([3, 99, 100, 150, 199])
+    with pytest.raises(pa.ArrowInvalid):
+        table.take(pa.array(rows))
+    assert take_rows(table, rows).column("q").to_pylist() == ["3", "99", "100", "150", "199"]

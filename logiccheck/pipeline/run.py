@@ -198,6 +198,21 @@ def compact(table: pa.Table) -> pa.Table:
     return pa.table(columns, names=table.column_names)
 
 
+def take_rows(table: pa.Table, rows: np.ndarray) -> pa.Table:
+    """The given rows (sorted) of a table, batch by batch: the kept cells' chunks carry
+    dictionaries of their own, narrowed, which one `take` over the whole table would
+    have to unify (and cannot, once their union outgrows the narrow index type)."""
+    parts: list[pa.RecordBatch] = []
+    start = 0
+    for batch in table.to_batches():
+        stop = start + batch.num_rows
+        lo, hi = np.searchsorted(rows, [start, stop])
+        if hi > lo:
+            parts.append(batch.take(pa.array(rows[lo:hi] - start, pa.int64())))
+        start = stop
+    return pa.Table.from_batches(parts, schema=table.schema) if parts else table.slice(0, 0)
+
+
 def _joined(parts: list[pa.Table], header: list[str]) -> pa.Table:
     parts = [p for p in parts if p.num_rows] or parts[:1]
     if not parts:
@@ -383,5 +398,5 @@ def _context(
         mapping=mapping,
         sample_frame=result.sample_frame,
         options={"settings": config},
-        values_at=lambda rows: _typed_values(raw.take(pa.array(rows, pa.int64())), validator, int(rows.size)),
+        values_at=lambda rows: _typed_values(take_rows(raw, rows), validator, int(rows.size)),
     )
