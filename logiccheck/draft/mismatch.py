@@ -85,17 +85,22 @@ def own_condition(ctx: DataContext, name: str) -> str:
     return " and ".join(f"({p})" if " or " in p and len(parts) > 1 else p for p in parts)
 
 
-def alive_before(ctx: DataContext, name: str) -> np.ndarray:
-    """Respondents no stop ended before the item."""
+def stop_positions(ctx: DataContext) -> np.ndarray:
+    """Where each respondent's stop sits in the questionnaire (past the end: none), once
+    per run (one lookup per distinct stop)."""
     stop_at = ctx.memo.get("draft.stop_at")
     if stop_at is None:
-        # Where each respondent's stop sits, once per run (one lookup per distinct stop).
         index = {e.name: e.index for e in ctx.q.entries if e.kind == "stop"}
         names, inverse = np.unique(ctx.stop.astype(str), return_inverse=True)
         at_name = np.array([index.get(s, 1 << 30) if s else 1 << 30 for s in names.tolist()], dtype=np.int64)
         stop_at = at_name[inverse.reshape(-1)]
         ctx.memo["draft.stop_at"] = stop_at
-    return np.asarray(stop_at) > ctx.q.symbols[name].index
+    return np.asarray(stop_at)
+
+
+def alive_before(ctx: DataContext, name: str) -> np.ndarray:
+    """Respondents no stop ended before the item."""
+    return stop_positions(ctx) > ctx.q.symbols[name].index
 
 
 def compare(ctx: DataContext, columns: Columns, j: int, need: float, sample: np.ndarray | None,
@@ -139,8 +144,7 @@ class Screen:
         rng = np.random.default_rng(1)
         at = np.sort(rng.choice(size, size=min(SCREEN_ROWS, size), replace=False))
         rows = at if sample is None else sample[at]
-        alive_before(ctx, ctx.items[0])  # fills the memo
-        stop_at = np.asarray(ctx.memo["draft.stop_at"])[rows]
+        stop_at = stop_positions(ctx)[rows]
         index = np.array([ctx.q.symbols[name].index for name in ctx.items], dtype=np.int64)
         alive = stop_at[:, None] > index[None, :]
         self.keep = screen.promising([v.subset(at) for v in searched], ctx.has_value[rows], alive,
@@ -202,10 +206,11 @@ def routing_mismatch(ctx: DataContext) -> Iterator[Hits]:
             continue
         spec = own_condition(ctx, name)
         said = f"its condition `{spec}`" if spec else "the spec, which asks it of everyone,"
+        found = mined.condition.text({v: columns.whole(v) for v in mined.condition.reads()})  # cached columns
         yield Hits(
             rows=none,
             message=(
-                f"`{name}` is answered as if asked `when {mined.condition.text({v: columns.whole(v) for v in mined.condition.reads()})}` "
+                f"`{name}` is answered as if asked `when {found}` "
                 f"({100 * mined.explained / n:.1f} % of respondents fit that), far better than {said} "
                 f"({100 * own / n:.1f} %); check the spec's routing before the data"
             ),

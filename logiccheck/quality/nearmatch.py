@@ -271,6 +271,7 @@ class Coverage:
     candidates: int = 0
     skipped: list[np.ndarray] = field(default_factory=list)
     skipped_pairs: int = 0  # candidate pairs the skipped parts would have made (a lower bound)
+    _recorded: set[bytes] = field(default_factory=set, repr=False)
 
     @property
     def complete(self) -> bool:
@@ -285,7 +286,10 @@ class Coverage:
         return True
 
     def skip(self, cols: np.ndarray) -> None:
-        if not any(np.array_equal(cols, c) for c in self.skipped):
+        """Record a block (once, however many of its parts are skipped)."""
+        key = cols.tobytes()
+        if key not in self._recorded:
+            self._recorded.add(key)
             self.skipped.append(cols)
 
 
@@ -298,13 +302,15 @@ KEYS_PER_PAIR = 10
 
 
 def _pattern_pairs(present: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Index pairs (i < j) of the patterns that share an answered position."""
-    k = present.size
-    if k < 2:
-        return np.zeros(0, np.int64), np.zeros(0, np.int64)
-    i, j = np.triu_indices(k, 1)
-    share = (present[i] & present[j]) != 0
-    return i[share], j[share]
+    """Index pairs (i < j) of the patterns that share an answered position, one pattern
+    at a time (no k × k arrays, whatever the number of patterns)."""
+    left: list[np.ndarray] = [np.zeros(0, np.int64)]
+    right: list[np.ndarray] = [np.zeros(0, np.int64)]
+    for i in range(present.size - 1):
+        j = i + 1 + np.flatnonzero((present[i + 1 :] & present[i]) != 0)
+        left.append(np.full(j.size, i, np.int64))
+        right.append(j)
+    return np.concatenate(left), np.concatenate(right)
 
 
 def candidate_pairs(
@@ -376,13 +382,14 @@ def _joins(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, cov: Coverage)
     order = live[np.argsort(pattern[live], kind="stable")]
     present, first, sizes = _pattern_runs(pattern[order])
     k = present.size
-    if cov.budget is not None and JOIN_COST * (k * (k - 1) // 2) > cov.budget - cov.candidates:
+    most = JOIN_COST * (k * (k - 1) // 2)
+    if cov.budget is not None and most > cov.budget - cov.candidates:
         # Listing the pattern pairs alone is quadratic, and at JOIN_COST each they would
         # not fit in what is left (most pattern pairs share an answered item).
-        cov.allows(JOIN_COST * (k * (k - 1) // 2))
+        cov.skipped_pairs += most
         cov.skip(cols)
         return
-    pi, pj = _pattern_pairs(present) if k <= 4096 else _pattern_pairs_big(present)
+    pi, pj = _pattern_pairs(present)
     if pi.size == 0:
         return
     width = np.bitwise_count(present[pi] & present[pj]).astype(np.int64)
@@ -410,18 +417,6 @@ def _pattern_runs(sorted_patterns: np.ndarray) -> tuple[np.ndarray, np.ndarray, 
     """The distinct patterns of a sorted array, where each starts and how many."""
     starts, lengths = runs(sorted_patterns)
     return sorted_patterns[starts] if starts.size else sorted_patterns[:0], starts, lengths
-
-
-def _pattern_pairs_big(present: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """`_pattern_pairs` without the k × k index arrays, for blocks with very many
-    patterns (only an unbudgeted search lists them)."""
-    left: list[np.ndarray] = []
-    right: list[np.ndarray] = []
-    for i in range(present.size - 1):
-        j = i + 1 + np.flatnonzero((present[i + 1 :] & present[i]) != 0)
-        left.append(np.full(j.size, i, np.int64))
-        right.append(j)
-    return np.concatenate(left), np.concatenate(right)
 
 
 def compare_pairs(codes: np.ndarray, a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
